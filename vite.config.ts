@@ -1,0 +1,17 @@
+import { defineConfig } from 'vite';
+import react from '@vitejs/plugin-react';
+
+// One config for the viewer build (vite) and the test runner (vitest).
+export default defineConfig({
+  root: 'viewer',
+  base: './',
+  plugins: [react()],
+  build: { outDir: '../dist/viewer', emptyOutDir: true, chunkSizeWarningLimit: 2000 },
+  test: {
+    root: '.',
+    include: ['test/**/*.test.ts'],
+    testTimeout: 60_000,
+    hookTimeout: 180_000,
+    pool: 'forks',
+  },
+});
