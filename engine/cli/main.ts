@@ -7,6 +7,7 @@ import { ENGINE_VERSION } from '../version.ts';
 const commands: Record<string, () => Promise<Command>> = {
   run: async () => (await import('./run.ts')).command,
   probe: async () => (await import('./probe.ts')).command,
+  view: async () => (await import('./view.ts')).command,
 };
 
 /** Later commands register here; kept as a list so `axonloom --help` shows them in order. */
