@@ -109,6 +109,9 @@ export function checkScene(scene: SceneT): SceneProblem[] {
       c.position.forEach((x, a) => {
         if (x < 0 || x > size[a]) push(['cues', i, 'position', a], `must lie inside the volume [0, ${size[a]}] (got ${x})`);
       });
+      (c.extraSources ?? []).forEach((e, j) => e.position.forEach((x, a) => {
+        if (x < 0 || x > size[a]) push(['cues', i, 'extraSources', j, 'position', a], `must lie inside the volume [0, ${size[a]}] (got ${x})`);
+      }));
       if (c.solve === 'analytic' && c.boundary) push(['cues', i, 'boundary'], 'applies only with solve "grid"');
     } else if (c.kind === 'region') refRegion(['cues', i, 'region'], c.region, ['box', 'ellipsoid']);
     else if (c.kind === 'expressed') refRegion(['cues', i, 'region'], c.region, ['sheet']);

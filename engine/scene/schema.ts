@@ -94,6 +94,8 @@ export const PointCue = z.strictObject({
   ...chemistry,
   rate: nonNegative().describe('Q, amount secreted per second'),
   radius: positive().optional().describe('source radius, µm (default: one voxel)'),
+  extraSources: z.array(z.strictObject({ position: Vec3, rate: nonNegative().optional() })).max(1000).optional()
+    .describe('more sources of the same molecule (rate defaults to this cue’s); their fields add'),
   solve: z.enum(['analytic', 'grid']).default('analytic'),
   boundary: z.enum(['absorbing', 'reflecting']).optional().describe('grid solves only (default absorbing)'),
 });
@@ -153,6 +155,7 @@ export const Sensing = z.strictObject({
   mode: z.enum(['occupancy', 'filopodia']).default('occupancy'),
   receptorCount: z.number().int().positive().default(20000).describe('receptors per growth cone (binomial noise)'),
   coneDiameter: positive().default(10).describe('µm'),
+  saturation: positive().max(1).default(0.02).describe('bound-fraction difference across the cone at which its turning response saturates'),
   filopodia: z.number().int().min(1).max(64).default(8),
   filopodiumLength: positive().default(15).describe('µm'),
   adaptationHours: positive().optional().describe('adaptation time constant τ; omit for none'),
