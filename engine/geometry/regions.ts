@@ -81,7 +81,7 @@ export class Sheet implements CompiledRegion {
     const qx = x - (this.o[0] + u * this.U[0] + v * this.V[0]);
     const qy = y - (this.o[1] + u * this.U[1] + v * this.V[1]);
     const qz = z - (this.o[2] + u * this.U[2] + v * this.V[2]);
-    const dist = Math.hypot(qx, qy, qz);
+    const dist = Math.sqrt(qx * qx + qy * qy + qz * qz);
     if (dist > 1e-12) {
       n[0] = qx / dist; n[1] = qy / dist; n[2] = qz / dist;
     } else {
@@ -114,7 +114,7 @@ export class Box implements CompiledRegion {
     const qy = Math.abs(y - cy) - (this.max[1] - this.min[1]) / 2;
     const qz = Math.abs(z - cz) - (this.max[2] - this.min[2]) / 2;
     const ox = Math.max(qx, 0), oy = Math.max(qy, 0), oz = Math.max(qz, 0);
-    const outside = Math.hypot(ox, oy, oz);
+    const outside = Math.sqrt(ox * ox + oy * oy + oz * oz);
     if (outside > 0) {
       n[0] = (Math.sign(x - cx) * ox) / outside; n[1] = (Math.sign(y - cy) * oy) / outside; n[2] = (Math.sign(z - cz) * oz) / outside;
       return outside;
@@ -148,13 +148,13 @@ export class Ellipsoid implements CompiledRegion {
    *  exact for spheres, close near the surface of an ellipsoid, which is where walls act. */
   distance(x: number, y: number, z: number, n: Float64Array): number {
     const a = (x - this.c[0]) / this.r[0], b = (y - this.c[1]) / this.r[1], d = (z - this.c[2]) / this.r[2];
-    const q = Math.hypot(a, b, d);
+    const q = Math.sqrt(a * a + b * b + d * d);
     if (q < 1e-12) {
       n[0] = 1; n[1] = 0; n[2] = 0;
       return -Math.min(this.r[0], this.r[1], this.r[2]);
     }
     const gx = a / (q * this.r[0]), gy = b / (q * this.r[1]), gz = d / (q * this.r[2]);
-    const g = Math.hypot(gx, gy, gz);
+    const g = Math.sqrt(gx * gx + gy * gy + gz * gz);
     n[0] = gx / g; n[1] = gy / g; n[2] = gz / g;
     return (q - 1) / g;
   }

@@ -182,8 +182,9 @@ class Stepper {
     const margin = g.wallMargin, ww = g.wallWeight;
     if (ww > 0) {
       const n = this.normal;
-      for (const wall of this.w.walls) {
-        const d = wall.distance(x, y, z, n);
+      const walls = this.w.walls;
+      for (let wi = 0; wi < walls.length; wi++) {
+        const d = walls[wi].distance(x, y, z, n);
         const f = ww * wallPush(d, margin);
         if (f > 0) { hx += f * n[0]; hy += f * n[1]; hz += f * n[2]; }
       }
@@ -206,7 +207,9 @@ class Stepper {
     let px = x + len * nx, py = y + len * ny, pz = z + len * nz;
 
     // a wall cannot be entered: stay put and turn away (reflect the heading off its surface)
-    for (const wall of this.w.walls) {
+    const walls = this.w.walls;
+    for (let wi = 0; wi < walls.length; wi++) {
+      const wall = walls[wi];
       if (this.blocks(wall, x, y, z, px, py, pz)) {
         const n = this.normal;
         wall.distance(x, y, z, n);
@@ -218,7 +221,7 @@ class Stepper {
     }
 
     cones.heading[p] = nx; cones.heading[p + 1] = ny; cones.heading[p + 2] = nz;
-    const moved = Math.hypot(px - x, py - y, pz - z);
+    const moved = Math.sqrt((px - x) * (px - x) + (py - y) * (py - y) + (pz - z) * (pz - z));
     const s = this.size;
     if (px < 0 || py < 0 || pz < 0 || px > s[0] || py > s[1] || pz > s[2]) {
       px = clamp(px, 0, s[0]); py = clamp(py, 0, s[1]); pz = clamp(pz, 0, s[2]);
@@ -232,7 +235,8 @@ class Stepper {
 
     if (cones.status[i] === GROWING && steps % g.stallSteps === 0) {
       const c = cones.checkpoint;
-      if (Math.hypot(px - c[p], py - c[p + 1], pz - c[p + 2]) < g.stallDistance) cones.status[i] = STALLED;
+      const ex = px - c[p], ey = py - c[p + 1], ez = pz - c[p + 2];
+      if (ex * ex + ey * ey + ez * ez < g.stallDistance * g.stallDistance) cones.status[i] = STALLED;
       c[p] = px; c[p + 1] = py; c[p + 2] = pz;
     }
   }
