@@ -48,9 +48,14 @@ export async function runScene(req: RunRequest): Promise<RunOutcome> {
     recorder.abort();
     throw e;
   }
-  const metrics = { growth: growthMetrics(world) };
+  const metrics: Record<string, unknown> = { growth: growthMetrics(world) };
+  const axonColumns = [];
+  for (const rule of world.rules) {
+    Object.assign(metrics, rule.metrics?.() ?? {});
+    axonColumns.push(...(rule.axonColumns?.() ?? []));
+  }
   const manifest = recorder.finish(result, {
-    variant: resolved.variant, edits: resolved.edits, metrics,
+    variant: resolved.variant, edits: resolved.edits, metrics, axonColumns,
     wallTimeS: (performance.now() - t0) / 1000,
   });
   return { manifest, dir: recorder.finalDir, world, result };

@@ -7,6 +7,7 @@ import { seedCones, ConeState, GROWING, WAITING, type ConePopulation } from '../
 import { sensedGradientOccupancy, sensedGradientFilopodia, adaptLevel } from '../agents/sensing.ts';
 import { sampleVonMisesFisher, wallPush } from '../agents/steering.ts';
 import { STATUS_CODE } from '../io/runFormat.ts';
+import { buildRules, type GrowthRule } from './rules.ts';
 
 const REACHED = STATUS_CODE.reached;
 const STALLED = STATUS_CODE.stalled;
@@ -24,6 +25,8 @@ export interface World {
   populations: ConePopulation[];
   walls: CompiledRegion[];
   steps: number;
+  /** behaviours beyond cue sensing (see rules.ts), built from the scene */
+  rules: GrowthRule[];
 }
 
 export interface WorldOptions {
@@ -40,7 +43,9 @@ export function buildWorld(scene: Scene, opts: WorldOptions = {}): World {
   const fieldIndex = new Map(fields.map((f, i) => [f.name, i]));
   const { cones, populations } = seedCones(scene, regions, { axons: opts.axons, edits: opts.edits ?? [], fieldIndex });
   const walls = [...regions.values()].filter((r) => !r.permissive);
-  return { scene, regions, fields, fieldIndex, fieldContext: ctx, cones, populations, walls, steps: opts.steps ?? scene.growth.steps };
+  const world: World = { scene, regions, fields, fieldIndex, fieldContext: ctx, cones, populations, walls, steps: opts.steps ?? scene.growth.steps, rules: [] };
+  world.rules = buildRules(world);
+  return world;
 }
 
 export interface SimHooks {
@@ -92,6 +97,7 @@ export async function simulate(world: World, hooks: SimHooks = {}): Promise<SimR
     if (active === 0 && !stepper.anyWaiting(step)) break;
   }
   if (frameSteps[frameSteps.length - 1] !== step) emit(step);
+  for (const r of world.rules) r.finish?.(step);
   // whatever is still growing ends with the reason the loop ended
   const end = interrupted ? INTERRUPTED : MAX_STEPS;
   for (let i = 0; i < cones.count; i++) if (cones.status[i] === GROWING) cones.status[i] = end;
@@ -110,6 +116,11 @@ class Stepper {
   private readonly size: Float64Array;
   private readonly tipField: { field: CueField; grad: Float64Array };
   private readonly sampleTip: (x: number, y: number, z: number) => number;
+  private readonly h = new Float64Array(3);
+  private readonly advanceRules: GrowthRule[];
+  private readonly steerRules: GrowthRule[];
+  private readonly movedRules: GrowthRule[];
+  private readonly reachedRules: GrowthRule[];
 
   constructor(world: World) {
     this.w = world;
@@ -117,6 +128,10 @@ class Stepper {
     this.tipField = { field: world.fields[0], grad: new Float64Array(3) };
     const tf = this.tipField;
     this.sampleTip = (x, y, z) => tf.field.sample(x, y, z, tf.grad);
+    this.advanceRules = world.rules.filter((r) => r.advance);
+    this.steerRules = world.rules.filter((r) => r.steer);
+    this.movedRules = world.rules.filter((r) => r.moved);
+    this.reachedRules = world.rules.filter((r) => r.reached);
   }
 
   anyWaiting(step: number): boolean {
@@ -126,6 +141,7 @@ class Stepper {
   /** Advances every growing cone one step; returns how many are still growing. */
   step(step: number): number {
     const { cones, populations } = this.w;
+    for (const r of this.w.rules) r.beforeStep?.(step);
     let active = 0;
     for (const pop of populations) {
       if (step < pop.startStep) continue;
@@ -133,14 +149,20 @@ class Stepper {
       if (step === pop.startStep) for (let i = pop.first; i < end; i++) if (cones.status[i] === WAITING) cones.status[i] = GROWING;
       for (let i = pop.first; i < end; i++) {
         if (cones.status[i] !== GROWING) continue;
-        this.advance(i, pop);
+        if (!this.advanceByRule(i, pop, step)) this.advance(i, pop, step);
         if (cones.status[i] === GROWING) active++;
       }
     }
     return active;
   }
 
-  private advance(i: number, pop: ConePopulation): void {
+  private advanceByRule(i: number, pop: ConePopulation, step: number): boolean {
+    const rules = this.advanceRules;
+    for (let r = 0; r < rules.length; r++) if (rules[r].advance!(i, pop, step)) return true;
+    return false;
+  }
+
+  private advance(i: number, pop: ConePopulation, step: number): void {
     const { cones, fields, scene } = this.w;
     const g = scene.growth;
     const spec = pop.spec;
@@ -197,6 +219,14 @@ class Stepper {
       if (s[2] - z < margin) hz -= ww * wallPush(s[2] - z, margin);
     }
 
+    const steer = this.steerRules;
+    if (steer.length) {
+      const h = this.h;
+      h[0] = hx; h[1] = hy; h[2] = hz;
+      for (let r = 0; r < steer.length; r++) steer[r].steer!(i, pop, x, y, z, h);
+      hx = h[0]; hy = h[1]; hz = h[2];
+    }
+
     let hl = Math.sqrt(hx * hx + hy * hy + hz * hz);
     if (hl < 1e-12) { hx = dx; hy = dy; hz = dz; hl = 1; }
     const out = this.dirOut;
@@ -221,17 +251,23 @@ class Stepper {
     }
 
     cones.heading[p] = nx; cones.heading[p + 1] = ny; cones.heading[p + 2] = nz;
-    const moved = Math.sqrt((px - x) * (px - x) + (py - y) * (py - y) + (pz - z) * (pz - z));
+    const dist = Math.sqrt((px - x) * (px - x) + (py - y) * (py - y) + (pz - z) * (pz - z));
     const s = this.size;
     if (px < 0 || py < 0 || pz < 0 || px > s[0] || py > s[1] || pz > s[2]) {
       px = clamp(px, 0, s[0]); py = clamp(py, 0, s[1]); pz = clamp(pz, 0, s[2]);
       cones.status[i] = EXITED;
     }
     cones.position[p] = px; cones.position[p + 1] = py; cones.position[p + 2] = pz;
-    cones.pathLength[i] += moved;
+    cones.pathLength[i] += dist;
     const steps = ++cones.steps[i];
+    const moved = this.movedRules;
+    for (let r = 0; r < moved.length; r++) moved[r].moved!(i, pop, x, y, z);
 
-    if (pop.target && cones.status[i] === GROWING && this.reaches(pop.target, x, y, z, px, py, pz, len)) cones.status[i] = REACHED;
+    if (pop.target && cones.status[i] === GROWING && this.reaches(pop.target, x, y, z, px, py, pz, len)) {
+      cones.status[i] = REACHED;
+      const rr = this.reachedRules;
+      for (let r = 0; r < rr.length; r++) if (rr[r].reached!(i, pop, step)) { cones.status[i] = GROWING; break; }
+    }
 
     if (cones.status[i] === GROWING && steps % g.stallSteps === 0) {
       const c = cones.checkpoint;
