@@ -58,8 +58,8 @@ export async function engineBench() {
     coneStepsPerSec,
     kernelConeStepsPerSec,
     engineOverKernel: coneStepsPerSec / kernelConeStepsPerSec,
-    peakRssMiB: process.resourceUsage().maxRSS / 1024,
-    axons: AXONS, steps: STEPS, repeats: REPEATS,
+    enginePeakRssMiB: process.resourceUsage().maxRSS / 1024,
+    engineBench: { axons: AXONS, steps: STEPS, repeats: REPEATS, cues: 3 },
   };
 }
 
@@ -123,8 +123,8 @@ if (process.argv[1]?.endsWith('engine.bench.ts')) {
   const r = await engineBench();
   if (process.argv.includes('--json')) process.stdout.write(JSON.stringify(r) + '\n');
   else {
-    console.log(`engine: ${(r.coneStepsPerSec / 1e6).toFixed(2)} M cone-steps/s (median of ${r.repeats}, ${r.axons} axons × ${r.steps} steps, 3 cues)`);
+    console.log(`engine: ${(r.coneStepsPerSec / 1e6).toFixed(2)} M cone-steps/s (median of ${REPEATS}, ${AXONS} axons × ${STEPS} steps, 3 cues)`);
     console.log(`minimal kernel: ${(r.kernelConeStepsPerSec / 1e6).toFixed(2)} M cone-steps/s; engine/kernel = ${(100 * r.engineOverKernel).toFixed(0)} %`);
-    console.log(`peak RSS: ${r.peakRssMiB.toFixed(0)} MiB`);
+    console.log(`peak RSS: ${r.enginePeakRssMiB.toFixed(0)} MiB`);
   }
 }

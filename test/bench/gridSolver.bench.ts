@@ -32,8 +32,11 @@ const median = (xs: number[]) => {
   return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
 };
 
-console.log(`gridSolver bench: median of ${runs} run(s), node ${process.version}`);
-console.log('grid      walls       λ/h    preconditioner  iterations  median ms  (min–max)');
+const json = args.includes('--json');
+const log = (line: string) => { if (!json) console.log(line); };
+const results: Record<string, number> = {};
+log(`gridSolver bench: median of ${runs} run(s), node ${process.version}`);
+log('grid      walls       λ/h    preconditioner  iterations  median ms  (min–max)');
 for (const N of sizes) {
   const grid = { nx: N, ny: N, nz: N, h: 1 };
   const mid = (N - 1) / 2;
@@ -53,7 +56,8 @@ for (const N of sizes) {
         iterations = sol.iterations;
         if (!(sol.relResidual <= 1e-8)) throw new Error(`did not converge: ${sol.relResidual}`);
       }
-      console.log(
+      results[`${N}^3-${boundary}-${preconditioner}`] = Math.round(median(times));
+      log(
         `${`${N}³`.padEnd(9)} ${boundary.padEnd(11)} ${String(lambdaVoxels).padStart(5)}  ${preconditioner.padEnd(15)} ` +
           `${String(iterations).padStart(10)}  ${median(times).toFixed(0).padStart(9)}  ` +
           `(${Math.min(...times).toFixed(0)}–${Math.max(...times).toFixed(0)})`,
@@ -61,3 +65,4 @@ for (const N of sizes) {
     }
   }
 }
+if (json) process.stdout.write(JSON.stringify({ gridSolveMedianMs: results }) + '\n');
