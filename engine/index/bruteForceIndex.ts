@@ -1,0 +1,71 @@
+// Exhaustive shaft index: every query scans every segment. O(total segments) per query; it
+// exists as the reference the fast indexes are tested and benchmarked against.
+
+import {
+  type NearestSegment,
+  type ShaftIndex,
+  type ShaftIndexOptions,
+  ShaftStore,
+  clearNearest,
+  fillNearest,
+  pointSegmentDistanceSq,
+} from './shaftIndex.ts';
+
+export class BruteForceShaftIndex implements ShaftIndex {
+  private readonly store: ShaftStore;
+
+  constructor(opts: ShaftIndexOptions) {
+    this.store = new ShaftStore(opts.axons, opts.maxPointsPerAxon);
+  }
+
+  get segmentCount(): number {
+    return this.store.segmentCount;
+  }
+
+  append(axon: number, x: number, y: number, z: number): void {
+    this.store.append(axon, x, y, z);
+  }
+
+  nearestSegment(
+    x: number, y: number, z: number, r: number,
+    accept: (axon: number) => boolean, out: NearestSegment,
+  ): boolean {
+    clearNearest(out);
+    const store = this.store;
+    const r2 = r * r;
+    let best2 = Infinity, bestA = -1, bestS = -1;
+    for (let a = 0; a < store.axonCount; a++) {
+      const n = store.pointCount[a];
+      if (n < 2 || !accept(a)) continue;
+      const p = store.xyz;
+      let o = store.offset(a, 0);
+      for (let s = 0; s < n - 1; s++, o += 3) {
+        const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
+        if (d2 <= r2 && d2 < best2) {
+          best2 = d2;
+          bestA = a;
+          bestS = s;
+        }
+      }
+    }
+    if (bestA >= 0) fillNearest(out, store, bestA, bestS, x, y, z, best2);
+    return out.found;
+  }
+
+  segmentsWithin(
+    x: number, y: number, z: number, r: number,
+    visit: (axon: number, segment: number, distance: number) => void,
+  ): void {
+    const store = this.store;
+    const r2 = r * r;
+    for (let a = 0; a < store.axonCount; a++) {
+      const n = store.pointCount[a];
+      const p = store.xyz;
+      let o = store.offset(a, 0);
+      for (let s = 0; s < n - 1; s++, o += 3) {
+        const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
+        if (d2 <= r2) visit(a, s, Math.sqrt(d2));
+      }
+    }
+  }
+}

@@ -1,0 +1,253 @@
+// Spatial index over growing axon shafts: the interface every implementation honours, the
+// shared shaft storage, the point–segment geometry and a factory.
+//
+// Model: axon a (0..N-1) lays a shaft, a polyline whose points are appended one per growth
+// step; segment s of axon a runs from point s to point s+1. Shafts only grow. Queries ask for
+// the nearest segment within a radius (fasciculation: pull toward the nearest shaft point and
+// align with its tangent) or for every segment within a radius.
+//
+// Implementations (one file each): rtreeIndex.ts (rbush over boxes of segment chunks),
+// hashGridIndex.ts (uniform 3D hash grid on typed arrays), bruteForceIndex.ts (exhaustive scan,
+// the reference for tests and the benchmark). They import the helpers below only inside
+// functions and constructors, so the import cycle with the factory at the bottom is harmless.
+
+import { BruteForceShaftIndex } from './bruteForceIndex.ts';
+import { HashGridShaftIndex } from './hashGridIndex.ts';
+import { RTreeShaftIndex } from './rtreeIndex.ts';
+
+/** Reusable out-object, filled by queries, never allocated per query. */
+export interface NearestSegment {
+  found: boolean;
+  axon: number;
+  segment: number;
+  /** µm from the query point to the closest point on that segment */
+  distance: number;
+  /** the closest point */
+  px: number;
+  py: number;
+  pz: number;
+  /** unit tangent of the segment (point s → s+1); (0,0,0) for a zero-length segment */
+  tx: number;
+  ty: number;
+  tz: number;
+}
+
+export interface ShaftIndex {
+  /** append point (x,y,z) to axon a's shaft (the first call for an axon starts it) */
+  append(axon: number, x: number, y: number, z: number): void;
+  /** nearest segment within radius r of (x,y,z), skipping axons for which accept(axon) is false
+   *  (e.g. itself, incompatible adhesion class); writes into out; returns out.found */
+  nearestSegment(
+    x: number,
+    y: number,
+    z: number,
+    r: number,
+    accept: (axon: number) => boolean,
+    out: NearestSegment,
+  ): boolean;
+  /** calls visit(axon, segment, distance) once for every segment within r of (x,y,z) */
+  segmentsWithin(
+    x: number,
+    y: number,
+    z: number,
+    r: number,
+    visit: (axon: number, segment: number, distance: number) => void,
+  ): void;
+  readonly segmentCount: number;
+}
+
+export type ShaftIndexKind = 'rtree' | 'hashgrid' | 'brute';
+
+export interface ShaftIndexOptions {
+  /** expected number of axons (ids 0..axons-1); higher ids are accepted, storage doubles */
+  axons: number;
+  /** expected maximum points per axon; a longer shaft doubles every axon's capacity (a copy) */
+  maxPointsPerAxon: number;
+  /** hashgrid: cell edge in µm. Set it to the query radius you use; default 20 µm, the upper
+   *  end of the fasciculation radius. */
+  cellSize?: number;
+  /** rtree: consecutive segments of one axon per box; default 8 */
+  chunkSize?: number;
+  /** rtree: the plane rbush indexes (it is 2D); the third axis is filtered per chunk. Pick the
+   *  plane across the volume's thinnest axis; default 'xy'. */
+  projection?: 'xy' | 'xz' | 'yz';
+}
+
+export function createShaftIndex(kind: ShaftIndexKind, opts: ShaftIndexOptions): ShaftIndex {
+  switch (kind) {
+    case 'rtree':
+      return new RTreeShaftIndex(opts);
+    case 'hashgrid':
+      return new HashGridShaftIndex(opts);
+    case 'brute':
+      return new BruteForceShaftIndex(opts);
+    default:
+      throw new RangeError(`unknown shaft index kind: ${String(kind)}`);
+  }
+}
+
+export function createNearestSegment(): NearestSegment {
+  return { found: false, axon: -1, segment: -1, distance: Infinity, px: 0, py: 0, pz: 0, tx: 0, ty: 0, tz: 0 };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Geometry
+
+/** Parameter t ∈ [0, 1] of the point of segment AB closest to P:
+ *      t = clamp( ((P − A)·(B − A)) / |B − A|², 0, 1 ),   t = 0 when A = B.
+ *  Orthogonal projection onto the line, clamped to the segment (Ericson, Real-Time Collision
+ *  Detection, 2005, §5.1.2, from memory). */
+export function closestParamOnSegment(
+  px: number, py: number, pz: number,
+  ax: number, ay: number, az: number,
+  bx: number, by: number, bz: number,
+): number {
+  const ex = bx - ax, ey = by - ay, ez = bz - az;
+  const len2 = ex * ex + ey * ey + ez * ez;
+  if (len2 === 0) return 0;
+  const t = ((px - ax) * ex + (py - ay) * ey + (pz - az) * ez) / len2;
+  return t < 0 ? 0 : t > 1 ? 1 : t;
+}
+
+/** Squared distance from P to segment AB: |P − (A + t (B − A))|² with t from
+ *  closestParamOnSegment. Squared so hot loops compare against r² without a square root. */
+export function pointSegmentDistanceSq(
+  px: number, py: number, pz: number,
+  ax: number, ay: number, az: number,
+  bx: number, by: number, bz: number,
+): number {
+  const t = closestParamOnSegment(px, py, pz, ax, ay, az, bx, by, bz);
+  const dx = px - (ax + t * (bx - ax));
+  const dy = py - (ay + t * (by - ay));
+  const dz = pz - (az + t * (bz - az));
+  return dx * dx + dy * dy + dz * dz;
+}
+
+/** Distance from P to segment AB, µm. */
+export function pointSegmentDistance(
+  px: number, py: number, pz: number,
+  ax: number, ay: number, az: number,
+  bx: number, by: number, bz: number,
+): number {
+  return Math.sqrt(pointSegmentDistanceSq(px, py, pz, ax, ay, az, bx, by, bz));
+}
+
+/** Slack (µm) added to box and cell ranges so a segment whose computed distance is exactly r
+ *  is never culled by rounding in a box test; the exact d² ≤ r² test decides membership. */
+export const BOX_SLACK = 1e-6;
+
+// ---------------------------------------------------------------------------------------------
+// Shared shaft storage
+
+/** Points of every shaft in one Float64Array, one block of `stride` points per axon:
+ *  point i of axon a is at xyz[(a·stride + i)·3 ..]. Blocks keep one axon's segments contiguous
+ *  for the chunk and brute-force scans, and give every segment the integer key a·stride + s. */
+export class ShaftStore {
+  xyz: Float64Array;
+  /** points appended per axon */
+  pointCount: Int32Array;
+  /** point capacity per axon; doubles (with a full copy) when an axon outgrows it */
+  stride: number;
+  axonCapacity: number;
+  /** 1 + the highest axon id appended so far */
+  axonCount = 0;
+  segmentCount = 0;
+
+  constructor(axons: number, maxPointsPerAxon: number) {
+    this.axonCapacity = Math.max(1, Math.ceil(axons));
+    this.stride = Math.max(2, Math.ceil(maxPointsPerAxon));
+    checkKeyRange(this.axonCapacity, this.stride);
+    this.xyz = new Float64Array(this.axonCapacity * this.stride * 3);
+    this.pointCount = new Int32Array(this.axonCapacity);
+  }
+
+  /** Appends a point and returns the axon's new point count (≥ 2 means a segment was added). */
+  append(a: number, x: number, y: number, z: number): number {
+    if (!Number.isInteger(a) || a < 0) throw new RangeError(`axon id must be a non-negative integer, got ${a}`);
+    if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z)) {
+      throw new RangeError(`shaft point of axon ${a} is not finite: (${x}, ${y}, ${z})`);
+    }
+    if (a >= this.axonCapacity) this.growAxons(Math.max(a + 1, this.axonCapacity * 2));
+    const n = this.pointCount[a];
+    if (n === this.stride) this.growStride(this.stride * 2);
+    const o = (a * this.stride + n) * 3;
+    this.xyz[o] = x;
+    this.xyz[o + 1] = y;
+    this.xyz[o + 2] = z;
+    this.pointCount[a] = n + 1;
+    if (a >= this.axonCount) this.axonCount = a + 1;
+    if (n >= 1) this.segmentCount++;
+    return n + 1;
+  }
+
+  /** Offset into xyz of point i of axon a. */
+  offset(a: number, i: number): number {
+    return (a * this.stride + i) * 3;
+  }
+
+  private growAxons(capacity: number): void {
+    checkKeyRange(capacity, this.stride);
+    const xyz = new Float64Array(capacity * this.stride * 3);
+    xyz.set(this.xyz);
+    const count = new Int32Array(capacity);
+    count.set(this.pointCount);
+    this.xyz = xyz;
+    this.pointCount = count;
+    this.axonCapacity = capacity;
+  }
+
+  private growStride(stride: number): void {
+    checkKeyRange(this.axonCapacity, stride);
+    const xyz = new Float64Array(this.axonCapacity * stride * 3);
+    for (let a = 0; a < this.axonCount; a++) {
+      const from = a * this.stride * 3;
+      xyz.set(this.xyz.subarray(from, from + this.pointCount[a] * 3), a * stride * 3);
+    }
+    this.xyz = xyz;
+    this.stride = stride;
+  }
+}
+
+/** Segment keys a·stride + s live in Int32Arrays. */
+function checkKeyRange(axons: number, stride: number): void {
+  if (axons * stride > 0x7fffffff) {
+    throw new RangeError(`shaft storage too large: ${axons} axons × ${stride} points exceeds 2^31 segment keys`);
+  }
+}
+
+/** Fills `out` with segment s of axon a as seen from (x, y, z); shared by every
+ *  implementation so they report identical numbers for the same segment. */
+export function fillNearest(
+  out: NearestSegment, store: ShaftStore, a: number, s: number,
+  x: number, y: number, z: number, d2: number,
+): void {
+  const p = store.xyz;
+  const o = store.offset(a, s);
+  const ax = p[o], ay = p[o + 1], az = p[o + 2];
+  const bx = p[o + 3], by = p[o + 4], bz = p[o + 5];
+  const t = closestParamOnSegment(x, y, z, ax, ay, az, bx, by, bz);
+  const ex = bx - ax, ey = by - ay, ez = bz - az;
+  const len = Math.hypot(ex, ey, ez); // hypot: no underflow for very short segments
+  out.found = true;
+  out.axon = a;
+  out.segment = s;
+  out.distance = Math.sqrt(d2);
+  out.px = ax + t * ex;
+  out.py = ay + t * ey;
+  out.pz = az + t * ez;
+  if (len > 0) {
+    out.tx = ex / len;
+    out.ty = ey / len;
+    out.tz = ez / len;
+  } else {
+    out.tx = out.ty = out.tz = 0;
+  }
+}
+
+/** Marks `out` empty. */
+export function clearNearest(out: NearestSegment): void {
+  out.found = false;
+  out.axon = -1;
+  out.segment = -1;
+  out.distance = Infinity;
+}
