@@ -126,7 +126,7 @@ async function handle(req: IncomingMessage, res: ServerResponse, viewerRoot: str
   });
   if (req.method === 'HEAD') return void res.end();
   await new Promise<void>((resolve) => {
-    const stream = createReadStream(file);
+    const stream = createReadStream(file, { highWaterMark: 1 << 20 }); // 1 MiB reads: frame files are tens of MB
     stream.on('error', () => {
       res.destroy();
       resolve();
