@@ -1,6 +1,8 @@
 // Region geometry compiled once per run into flat numbers, so the step loop can ask
 // "inside?", "how far, and which way out?" and "where on the sheet?" without allocating.
 import type { Region } from '../scene/schema.ts';
+import { Tube } from './tube.ts';
+import { Domain } from './domains.ts';
 
 export interface CompiledRegion {
   readonly name: string;
@@ -165,6 +167,8 @@ export function compileRegion(r: Region): CompiledRegion {
     case 'box': return new Box(r);
     case 'ellipsoid': return new Ellipsoid(r);
     case 'sheet': return new Sheet(r);
+    case 'tube': return new Tube(r);
+    case 'domain': return new Domain(r); // bound to its border cue's fields when they are built
   }
 }
 

@@ -36,6 +36,14 @@ export interface FieldGridInfo {
   spacing?: number;
   min: number;
   max: number;
+  /** Present on the field named after a border cue: its values are a − b, the difference of the
+   *  cue's two species (a = species[0]), positive on a's side; the border surface, where the two
+   *  are equal, is the zero isosurface of this grid. The species have their own grids under
+   *  their own names. `solve` reports the coupled solve (engine/fields/borderSolver.ts). */
+  border?: {
+    species: [string, string];
+    solve: { iterations: number; linearIterations: number; gap: number; converged: boolean; unique: boolean; method: string };
+  };
 }
 
 export interface PopulationInfo {

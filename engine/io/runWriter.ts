@@ -11,6 +11,7 @@ import { toCsv, formatFloat32, type CsvCell } from './csv.ts';
 import { axonsToSwc, type AxonPath } from './swc.ts';
 import { RUN_FILES, RUN_FORMAT_VERSION, AXON_STATUS, type RunManifest, type FieldGridInfo, type AxonStatus } from './runFormat.ts';
 import { ENGINE_VERSION } from '../version.ts';
+import { BorderDifference } from '../fields/border.ts';
 
 export interface RecorderOptions {
   outDir: string;
@@ -126,7 +127,8 @@ export class RunRecorder {
       if (grid.space === 'volume') {
         const shape = [grid.grid.nz, grid.grid.ny, grid.grid.nx];
         this.dir.writeBinary(file, encodeNpy(grid.values, shape));
-        return { cue: f.name, file, space: 'volume', shape, origin: grid.origin, spacing: grid.grid.h, min, max };
+        const border = f instanceof BorderDifference ? { border: { species: f.species, solve: f.stats } } : {};
+        return { cue: f.name, file, space: 'volume', shape, origin: grid.origin, spacing: grid.grid.h, min, max, ...border };
       }
       const shape = [grid.nv, grid.nu];
       this.dir.writeBinary(file, encodeNpy(grid.values, shape));
