@@ -105,11 +105,11 @@ describe('readRun on a fixture run directory', () => {
   });
 
   it('fetch loader reports HTTP failures with the file name', async () => {
-    const files: Record<string, Uint8Array> = { 'run.json': readFileSync(join(dir, 'run.json')) };
+    const files: Record<string, Buffer> = { 'run.json': readFileSync(join(dir, 'run.json')) };
     const fakeFetch = (async (url: string) => {
       const rel = String(url).replace('http://x/runs/fx/', '');
       const body = files[rel];
-      return body ? new Response(body) : new Response('nope', { status: 404 });
+      return body ? new Response(new Uint8Array(body)) : new Response('nope', { status: 404 });
     }) as unknown as typeof fetch;
     const err = await readRun(fetchLoader('http://x/runs/fx', fakeFetch)).catch((e) => e);
     expect(err.file).toBe('frames.npy');

@@ -3,19 +3,21 @@
 // colours, and a scrambled map looks scrambled.
 //
 // Design (ours), in OKLab so distances are perceptual:
-//   u (0 → 1) drives the blue ↔ yellow axis b from −0.14 to +0.14;
-//   v (0 → 1) drives lightness L from 0.60 to 0.88 and the green ↔ magenta axis a from −0.10 to +0.10.
+//   u (0 → 1) turns the blue ↔ yellow axis b from −0.10 to +0.12 (and lifts lightness a little);
+//   v (0 → 1) raises lightness L by 0.25 (and moves a from slightly green to neutral).
+//   L = 0.55 + 0.10·u + 0.25·v,   a = −0.06 + 0.06·v,   b = −0.10 + 0.22·u
 // Why these axes: the common colour-vision deficiencies (protan, deutan) lose the green ↔ red
-// axis but keep blue ↔ yellow and lightness, so for those viewers u is still carried by b and v
-// by lightness; everyone else gets v twice. The lightness floor of 0.60 keeps every axon
-// visible on the viewer's dark background. The centre of the sheet is a near-neutral grey,
-// distinct from every edge.
+// axis but keep blue ↔ yellow and lightness, so u and v both survive for those viewers. The
+// coefficients were chosen by a grid search for the largest smallest difference between the
+// four corners, for normal vision and for simulated protanopia and deuteranopia, with every
+// colour of the sheet inside the sRGB gamut (none loses chroma) and lightness at least 0.55, so
+// every axon stays visible on the viewer's dark background.
 import { oklabToSrgb } from './oklab.ts';
 
 export const SHEET_COLOUR_DESIGN = {
-  lightness: [0.6, 0.88],
-  a: [-0.1, 0.1],
-  b: [-0.14, 0.14],
+  L: { base: 0.55, u: 0.1, v: 0.25 },
+  a: { base: -0.06, v: 0.06 },
+  b: { base: -0.1, u: 0.22 },
 } as const;
 
 /** (u, v) ∈ [0, 1]² → sRGB in [0, 1]. Values outside [0, 1] are clamped first. */
@@ -28,7 +30,7 @@ export function sheetColour(u: number, v: number): [number, number, number] {
 export function sheetColourOklab(u: number, v: number): [number, number, number] {
   const uu = clamp01(u), vv = clamp01(v);
   const d = SHEET_COLOUR_DESIGN;
-  return [lerp(d.lightness[0], d.lightness[1], vv), lerp(d.a[0], d.a[1], vv), lerp(d.b[0], d.b[1], uu)];
+  return [d.L.base + d.L.u * uu + d.L.v * vv, d.a.base + d.a.v * vv, d.b.base + d.b.u * uu];
 }
 
 /** Colours for many axons at once, as RGBA bytes (alpha 255), for a data texture. NaN
@@ -51,9 +53,6 @@ export function sheetColourCss(u: number, v: number): string {
   return `rgb(${Math.round(r * 255)}, ${Math.round(g * 255)}, ${Math.round(b * 255)})`;
 }
 
-function lerp(a: number, b: number, t: number): number {
-  return a + (b - a) * t;
-}
 function clamp01(x: number): number {
   return x < 0 ? 0 : x > 1 ? 1 : x;
 }

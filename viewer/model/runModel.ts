@@ -102,11 +102,10 @@ export function buildRunModel(name: string, run: LoadedRun): RunModel {
   };
 }
 
-/** The frame shown at time `h` hours: the last frame at or before it. */
+/** The frame shown at time `h` hours: the last frame at or before it (frame 0 before the start). */
 export function frameAt(times: ArrayLike<number>, h: number): number {
   let lo = 0, hi = times.length - 1;
   if (hi < 0) return 0;
-  if (h <= times[0]) return 0;
   while (lo < hi) {
     const mid = (lo + hi + 1) >> 1;
     if (times[mid] <= h + 1e-9) lo = mid;
