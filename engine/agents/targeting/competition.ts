@@ -32,12 +32,11 @@ export class TerminalCompetition {
   // visitor state: one visitor made once, so queries allocate nothing
   private self = -1;
   private qx = 0; private qy = 0; private qz = 0;
-  private px = 0; private py = 0; private pz = 0;
   private r = 1;
   private acc = 0;
-  private acc2 = 0;
   private fx = 0; private fy = 0; private fz = 0;
-  private mode: 0 | 1 | 2 | 3 = 0;
+  /** 0: density sum, 1: repulsion sum, 2: collect neighbours */
+  private mode: 0 | 1 | 2 = 0;
   private picks = new Int32Array(64);
   private picked = 0;
   private readonly visit: (index: number, d: number) => void;
@@ -52,13 +51,7 @@ export class TerminalCompetition {
       if (this.ids[index] === this.self) return;
       if (this.mode === 0) {
         this.acc += pairEnergy(d, this.r);
-      } else if (this.mode === 1) {
-        // energy at the query point q and at the proposed point p, from one query
-        this.acc += pairEnergy(d, this.r);
-        const k = 3 * index;
-        const ex = this.xyz[k] - this.px, ey = this.xyz[k + 1] - this.py, ez = this.xyz[k + 2] - this.pz;
-        this.acc2 += pairEnergy(Math.sqrt(ex * ex + ey * ey + ez * ez), this.r);
-      } else if (this.mode === 3) {
+      } else if (this.mode === 2) {
         if (this.picked === this.picks.length) {
           const grown = new Int32Array(2 * this.picks.length);
           grown.set(this.picks);
@@ -99,22 +92,17 @@ export class TerminalCompetition {
     return this.acc;
   }
 
-  /** [C_i(p) − C_i(q)]/γ for a move from q to p, from one query of radius r + |p − q|. */
+  /** [C_i(p) − C_i(q)]/γ for a move from q to p. Two queries of radius r: one of radius
+   *  r + |p − q| around q would cover both but, for moves longer than r, visit many more. */
   densityChange(self: number, qx: number, qy: number, qz: number, px: number, py: number, pz: number, r: number): number {
-    if (!this.grid || this.count === 0) return 0;
-    const mx = px - qx, my = py - qy, mz = pz - qz;
-    this.self = self; this.r = r; this.mode = 1; this.acc = 0; this.acc2 = 0;
-    this.px = px; this.py = py; this.pz = pz;
-    // acc collects pairs within r + |move| of q: those beyond r add 0 to it, as they should
-    pointsWithin(this.grid, qx, qy, qz, r + Math.sqrt(mx * mx + my * my + mz * mz), this.visit);
-    return this.acc2 - this.acc;
+    return this.density(self, px, py, pz, r) - this.density(self, qx, qy, qz, r);
   }
 
   /** −∇C_i/γ at (x, y, z) into out[0..2], µm⁻¹. */
   repulsion(self: number, x: number, y: number, z: number, r: number, out: Float64Array): void {
     this.fx = this.fy = this.fz = 0;
     if (this.grid && this.count > 0) {
-      this.self = self; this.r = r; this.mode = 2;
+      this.self = self; this.r = r; this.mode = 1;
       this.qx = x; this.qy = y; this.qz = z;
       pointsWithin(this.grid, x, y, z, r, this.visit);
     }
@@ -124,7 +112,7 @@ export class TerminalCompetition {
   /** A terminal other than `self` within r of (x, y, z), chosen uniformly (its axon id), or −1. */
   randomNeighbour(self: number, x: number, y: number, z: number, r: number, rng: () => number): number {
     if (!this.grid || this.count === 0) return -1;
-    this.self = self; this.r = r; this.mode = 3; this.picked = 0;
+    this.self = self; this.r = r; this.mode = 2; this.picked = 0;
     pointsWithin(this.grid, x, y, z, r, this.visit);
     return this.picked ? this.picks[Math.floor(rng() * this.picked)] : -1;
   }
