@@ -8,6 +8,7 @@ const commands: Record<string, () => Promise<Command>> = {
   run: async () => (await import('./run.ts')).command,
   probe: async () => (await import('./probe.ts')).command,
   view: async () => (await import('./view.ts')).command,
+  compare: async () => (await import('./compare.ts')).command,
 };
 
 /** Later commands register here; kept as a list so `axonloom --help` shows them in order. */

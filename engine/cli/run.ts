@@ -5,6 +5,7 @@ import { parseOptions, parseIntOption, UsageError } from './args.ts';
 import { loadScene, parseEdit } from '../scene/load.ts';
 import { runScene } from '../sim/runScene.ts';
 import { ProgressBar } from './progress.ts';
+import { withReference } from '../map/reference.ts';
 
 const help = `Usage: axonloom run SCENE [options]
 
@@ -19,6 +20,8 @@ Options:
   --steps N           override the number of growth steps
   --variant NAME      apply one of the scene's named variants
   --perturb JSON      apply an edit, e.g. '{"op":"knockout","cue":"NAME"}' (repeatable)
+  --reference RUN     take that run's terminations as the expected map for metrics.map
+                      (instead of the scene's expectedMap axes)
   --swc               also write axons.swc (SWC, one tree per axon)
   --json              print the run's summary as one JSON object instead of a line
   --quiet             no progress bar
@@ -34,16 +37,17 @@ export const command: Command = {
   async run(argv) {
     const { values, positionals } = parseOptions(argv, {
       out: { type: 'string' }, seed: { type: 'string' }, axons: { type: 'string' }, steps: { type: 'string' },
-      variant: { type: 'string' }, perturb: { type: 'string', multiple: true },
+      variant: { type: 'string' }, perturb: { type: 'string', multiple: true }, reference: { type: 'string' },
       swc: { type: 'boolean' }, json: { type: 'boolean' }, quiet: { type: 'boolean' },
     }, 'run');
     if (positionals.length !== 1) throw new UsageError(`run: expected one scene file (got ${positionals.length}; see 'axonloom run --help')`);
     const seed = parseIntOption(values.seed, '--seed', 0, 2 ** 32 - 1);
     const axons = parseIntOption(values.axons, '--axons', 1, 1_000_000);
     const steps = parseIntOption(values.steps, '--steps', 1, 100_000);
-    const edits = (values.perturb ?? []).map((t) => parseEdit(t));
+    const edits = (values.perturb ?? []).map((t, i) => parseEdit(t, `--perturb[${i}]`));
     const file = positionals[0];
     const scene = loadScene(file);
+    if (values.reference !== undefined) scene.expectedMap = withReference(scene.expectedMap, values.reference);
     const outDir = values.out ?? `runs/${scene.name}`;
 
     const bar = new ProgressBar(scene.name, !values.quiet);

@@ -31,6 +31,26 @@ export function profileSlope(p: Profile, u: number, v: number): number {
   return p.amplitude * d * (p.reversed ? -1 : 1);
 }
 
+/** Mean level over the sheet, offset + A·∫₀¹ shape(t) dt, with the integrals in closed form:
+ *    constant 1;  linear 1/2;  exponential (1 − e^(−r))/r;
+ *    sigmoid  w·ln[(1 + e^((1−m)/w)) / (1 + e^(−m/w))]   (∫ 1/(1 + e^(−x)) dx = ln(1 + e^x)).
+ *  Used by the "flatten" edit, which shrinks a gradient around this level. */
+export function profileMean(p: Profile): number {
+  let m: number;
+  switch (p.shape) {
+    case 'constant': m = 1; break;
+    case 'linear': m = 0.5; break;
+    case 'exponential': m = -Math.expm1(-p.rate) / p.rate; break;
+    case 'sigmoid': m = p.width * (softplus((1 - p.midpoint) / p.width) - softplus(-p.midpoint / p.width)); break;
+  }
+  return p.offset + p.amplitude * m;
+}
+
+/** ln(1 + eˣ) without overflow for large x */
+function softplus(x: number): number {
+  return x > 30 ? x : Math.log1p(Math.exp(x));
+}
+
 function axisCoordinate(p: Profile, u: number, v: number): number {
   const t = p.axis === 'u' ? u : v;
   return p.reversed ? 1 - t : t;
