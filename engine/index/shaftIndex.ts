@@ -66,7 +66,7 @@ export interface ShaftIndexOptions {
   /** hashgrid: cell edge in µm. Set it to the query radius you use; default 20 µm, the upper
    *  end of the fasciculation radius. */
   cellSize?: number;
-  /** rtree: consecutive segments of one axon per box; default 8 */
+  /** rtree: consecutive segments of one axon per box; default 16 */
   chunkSize?: number;
   /** rtree: the plane rbush indexes (it is 2D); the third axis is filtered per chunk. Pick the
    *  plane across the volume's thinnest axis; default 'xy'. */
