@@ -208,6 +208,42 @@ describe('shaft indexes vs exhaustive search', () => {
 });
 
 describe('shaft index edge cases', () => {
+  it('outgrowing every preallocation (cells, points per axon, axon count) keeps answers exact', () => {
+    // 40 axons announced as 4 with 8 points each, grown to 400 points in 1 µm cells: the hash
+    // grid's cell table, block pool and key stride all double several times on the way.
+    fc.assert(
+      fc.property(fc.integer({ min: 1, max: 2 ** 30 }), (seed) => {
+        let st = seed;
+        const rand = () => ((st = (Math.imul(st, 1103515245) + 12345) >>> 0) / 2 ** 32);
+        const opts = { axons: 4, maxPointsPerAxon: 8, cellSize: 1, chunkSize: 8 };
+        const [brute, ...fast] = KINDS.map((k) => createShaftIndex(k, opts));
+        const pos = Array.from({ length: 40 }, () => [rand() * 60, rand() * 60, rand() * 60]);
+        for (let t = 0; t < 400; t++) {
+          for (let a = 0; a < 40; a++) {
+            for (let c = 0; c < 3; c++) pos[a][c] += 3 * (rand() - 0.5);
+            brute.append(a, pos[a][0], pos[a][1], pos[a][2]);
+            for (const f of fast) f.append(a, pos[a][0], pos[a][1], pos[a][2]);
+          }
+        }
+        const ref = createNearestSegment(), out = createNearestSegment();
+        for (let j = 0; j < 200; j++) {
+          const x = rand() * 60, y = rand() * 60, z = rand() * 60, r = 1 + 4 * rand(), me = j % 40;
+          const found = brute.nearestSegment(x, y, z, r, (a) => a !== me, ref);
+          let n = 0;
+          brute.segmentsWithin(x, y, z, r, () => n++);
+          for (const f of fast) {
+            check(f.nearestSegment(x, y, z, r, (a) => a !== me, out) === found, 'found differs');
+            check(!found || Math.abs(out.distance - ref.distance) <= 1e-9, `nearest ${out.distance} vs ${ref.distance}`);
+            let m = 0;
+            f.segmentsWithin(x, y, z, r, () => m++);
+            check(m === n, `within: ${m} segments vs ${n}`);
+          }
+        }
+      }),
+      { numRuns: 3 },
+    );
+  });
+
   it('an empty index finds nothing', () => {
     for (const k of KINDS) {
       const ix = createShaftIndex(k, { axons: 4, maxPointsPerAxon: 4 });
