@@ -32,6 +32,8 @@ export interface NearestSegment {
   tz: number;
 }
 
+/** Callbacks (accept, visit) must not append to or query the same index: queries reuse
+ *  per-index scratch (stamps, a traversal stack). */
 export interface ShaftIndex {
   /** append point (x,y,z) to axon a's shaft (the first call for an axon starts it) */
   append(axon: number, x: number, y: number, z: number): void;
