@@ -7,8 +7,11 @@ import { readRun, fsLoader, RunReadError } from '../io/runReader.ts';
 import { startViewerServer, listRuns } from '../server/staticServer.ts';
 
 const DEFAULT_PORT = 7317;
-/** dist/viewer, built by `vite build` from viewer/ (vite.config.ts) */
-export const VIEWER_BUILD_DIR = fileURLToPath(new URL('../../dist/viewer/', import.meta.url));
+/** dist/viewer, built by `vite build` from viewer/ (vite.config.ts); AXONLOOM_VIEWER_DIR
+ *  points elsewhere (tests, installs that keep the build apart). */
+export function viewerBuildDir(): string {
+  return resolve(process.env.AXONLOOM_VIEWER_DIR ?? fileURLToPath(new URL('../../dist/viewer/', import.meta.url)));
+}
 
 export const command: Command = {
   name: 'view',
@@ -48,8 +51,9 @@ URL parameters the viewer understands:
       }
       throw e;
     }
-    if (!existsSync(resolve(VIEWER_BUILD_DIR, 'index.html'))) {
-      process.stderr.write(`axonloom: view: the viewer is not built (no ${VIEWER_BUILD_DIR}index.html); build it with 'npx vite build'\n`);
+    const viewerDir = viewerBuildDir();
+    if (!existsSync(resolve(viewerDir, 'index.html'))) {
+      process.stderr.write(`axonloom: view: the viewer is not built (no ${resolve(viewerDir, 'index.html')}); build it with 'npx vite build'\n`);
       return 1;
     }
     if (values.check) {
@@ -59,7 +63,7 @@ URL parameters the viewer understands:
       return 0;
     }
 
-    const server = await startViewerServer({ viewerDir: VIEWER_BUILD_DIR, runDir, port }).catch((e: Error) => {
+    const server = await startViewerServer({ viewerDir, runDir, port }).catch((e: Error) => {
       throw new UsageError(`view: ${e.message}`);
     });
     process.stdout.write(`viewer: ${server.url}\n(serving on 127.0.0.1 only; Ctrl-C to stop)\n`);

@@ -33,13 +33,17 @@ export function scratchDir(tag: string): string {
 export async function launch(): Promise<BrowserContext> {
   if (!existsSync(CHROMIUM)) throw new Error(`no Chromium at ${CHROMIUM} (Debian package "chromium"; .ci/run installs it)`);
   mkdirSync(SHOTS, { recursive: true });
-  return chromium.launchPersistentContext(scratchDir('chromium'), {
+  const ctx = await chromium.launchPersistentContext(scratchDir('chromium'), {
     headless: true,
     executablePath: CHROMIUM,
     viewport: { width: 1440, height: 900 },
     args: ['--no-sandbox', '--disable-quic', '--use-angle=swiftshader', '--enable-unsafe-swiftshader', '--disable-background-networking',
       '--disable-component-update', '--disable-sync', '--no-first-run'],
   });
+  // tsx (esbuild) names functions through a __name helper; functions sent to page.evaluate
+  // carry those calls into the page, which has no such helper.
+  await ctx.addInitScript('window.__name = function (f) { return f; };');
+  return ctx;
 }
 
 /** Opens the viewer and waits for the root element's data-run-state to leave "loading". */

@@ -10,7 +10,7 @@ import { startViewerServer, type ViewerServer } from '../../engine/server/static
 import { readRun, fsLoader, type LoadedRun } from '../../engine/io/runReader.ts';
 import { makeRun } from '../fixtures/makeRun.ts';
 import { formatValue, formatHours } from '../../viewer/components/format.ts';
-import { MAP_METRICS } from '../../viewer/components/MapCheck.tsx';
+import { MAP_METRICS, PLOT, MARGIN } from '../../viewer/components/MapCheck.tsx';
 import { ROOT, SHOTS, buildViewer, engineRun, scratchDir, launch, open, settled, canvasPixels, pixelDifference } from './harness.ts';
 
 let server: ViewerServer;
@@ -124,11 +124,10 @@ describe('viewer in headless Chromium', () => {
     const box = (await plot.boundingBox())!;
     const u = fx.axons.numbers('source_u'), v = fx.axons.numbers('source_v');
     const k = 7;
-    // plot geometry of MapCheck: 44 px left margin, 8 px top, a 210 px square
-    await page.mouse.click(box.x + 44 + u[k] * 210, box.y + 8 + (1 - v[k]) * 210);
+    await page.mouse.click(box.x + MARGIN.l + u[k] * PLOT, box.y + MARGIN.t + (1 - v[k]) * PLOT);
     await page.waitForFunction((prev) => document.querySelector('[data-testid="axon-record"]')?.getAttribute('data-axon') !== prev, String(picked));
     const chosen = Number(await record.getAttribute('data-axon'));
-    expect(Math.hypot((u[chosen] - u[k]) * 210, (v[chosen] - v[k]) * 210)).toBeLessThan(7.5);
+    expect(Math.hypot((u[chosen] - u[k]) * PLOT, (v[chosen] - v[k]) * PLOT)).toBeLessThan(7.5);
     expect(await record.locator('td[data-col="source_u"]').innerText()).toBe(fx.axons.row(chosen).source_u);
     await page.close();
   });

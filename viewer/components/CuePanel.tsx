@@ -8,7 +8,16 @@ import { levelAt } from '../geometry/fieldLayer.ts';
 import { formatValue } from './format.ts';
 
 export function CuePanel({ store, model }: { store: ViewStore; model: RunModel }) {
-  const s = useStore(store, (x) => x);
+  // each field read on its own, so moving the time does not re-render this panel
+  const s = {
+    cue: useStore(store, (x) => x.cue),
+    sliceAxis: useStore(store, (x) => x.sliceAxis),
+    sliceFrac: useStore(store, (x) => x.sliceFrac),
+    logScale: useStore(store, (x) => x.logScale),
+    showSlice: useStore(store, (x) => x.showSlice),
+    showIso: useStore(store, (x) => x.showIso),
+    isoFrac: useStore(store, (x) => x.isoFrac),
+  };
   const fields = model.run.fieldInfos;
   const info = fields.find((f) => f.cue === s.cue) ?? null;
   const motion = () => performance.now();

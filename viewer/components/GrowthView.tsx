@@ -42,9 +42,17 @@ export function GrowthView(p: GrowthViewProps) {
   const [report, setReport] = useState<DrawReport | null>(null);
   const [bar, setBar] = useState<ScaleBar | null>(null);
   const labelsRef = useRef<HTMLDivElement>(null);
+  // The note is text the page must lay out and paint (in software, here): update it when what it
+  // says changes, and its frame time at most four times a second.
+  const shown = useRef({ at: 0, key: '' });
   const onReport = (r: DrawReport) => {
-    setReport(r);
     p.onReport?.(r);
+    const key = `${r.mode}|${r.axonsDrawn}|${r.axonsVisible}|${Math.round(r.progress * 20)}`;
+    const now = performance.now();
+    if (key !== shown.current.key || now - shown.current.at > 250) {
+      shown.current = { at: now, key };
+      setReport(r);
+    }
   };
   const { model, store } = p;
   return (
@@ -144,7 +152,7 @@ function ViewContents(p: ContentsProps) {
     const regions = new RegionLayer(model);
     const field = new FieldLayer(model.regions.filter((r): r is SheetRegion => r.shape === 'sheet'));
     const refineScene = new THREE.Scene();
-    refineScene.add(axons.refineObject);
+    refineScene.add(axons.refineObject, axons.refineTips);
     mark(`layersBuilt:${p.viewIndex}`);
     return { axons, regions, field, refineScene };
   }, [model]);
@@ -348,7 +356,7 @@ function ViewContents(p: ContentsProps) {
     progressive.step(cam);
     if (!live.current.ready && timings) {
       timings[`firstPrepare:${p.viewIndex}`] = progressive.lastPrepareMs;
-      timings[`firstDraw:${p.viewIndex}`] = progressive.cost.samples ? (window.__axonloom?.reports[p.viewIndex]?.[0]?.frameMs ?? 0) : 0;
+      timings[`firstDraw:${p.viewIndex}`] = window.__axonloom?.reports[p.viewIndex]?.[0]?.frameMs ?? NaN;
     }
     updateLabels(p.labelsRef.current, built.regions.labels, cam, size, store.get().hiddenRegions);
     if (cam.zoom !== live.current.zoom) {
@@ -388,7 +396,9 @@ function updateLabels(host: HTMLDivElement | null, labels: RegionLabel[], cam: T
     const el = host.children[i] as HTMLElement;
     tmp.copy(l.position).project(cam);
     const off = !(tmp.z >= -1 && tmp.z <= 1) || (l.region !== undefined && hidden.has(l.region));
-    el.style.display = off ? 'none' : '';
-    el.style.transform = `translate(${((tmp.x + 1) / 2) * size.width}px, ${((1 - tmp.y) / 2) * size.height}px) translate(-50%, -50%)`;
+    const display = off ? 'none' : '';
+    if (el.style.display !== display) el.style.display = display;
+    const t = `translate(${Math.round(((tmp.x + 1) / 2) * size.width)}px, ${Math.round(((1 - tmp.y) / 2) * size.height)}px) translate(-50%, -50%)`;
+    if (el.style.transform !== t) el.style.transform = t; // unchanged labels cost nothing
   });
 }

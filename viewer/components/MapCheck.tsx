@@ -21,8 +21,9 @@ export const MAP_METRICS: { key: string; label: string; unit?: string; percent?:
   { key: 'duplicationIndex', label: 'duplication index' },
 ];
 
-const PLOT = 210; // CSS px, square sheet plots
-const MARGIN = { l: 44, r: 8, t: 8, b: 30 };
+/** sheet plot geometry, CSS px: a PLOT-sized square inside these margins */
+export const PLOT = 180;
+export const MARGIN = { l: 44, r: 8, t: 8, b: 30 };
 
 export function MapCheck({ store, models }: { store: ViewStore; models: RunModel[] }) {
   const [tab, setTab] = useState(0);
@@ -166,7 +167,7 @@ function SheetPlot(p: {
 
 function ErrorHistogram({ errors, mask, selected }: { errors: Float64Array; mask: Uint8Array; selected: number | null }) {
   const ref = useRef<HTMLCanvasElement>(null);
-  const W = 310, H = PLOT + MARGIN.t + MARGIN.b;
+  const W = 280, H = PLOT + MARGIN.t + MARGIN.b;
   const stats = useMemo(() => {
     const vals: number[] = [];
     for (let a = 0; a < errors.length; a++) if (mask[a] && Number.isFinite(errors[a])) vals.push(errors[a]);

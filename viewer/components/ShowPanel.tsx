@@ -8,7 +8,14 @@ import { AXON_STATUS } from '../../engine/io/runFormat.ts';
 import { formatCount } from './format.ts';
 
 export function ShowPanel({ store, model }: { store: ViewStore; model: RunModel }) {
-  const s = useStore(store, (x) => x);
+  // each field read on its own, so moving the time does not re-render this panel
+  const s = {
+    hiddenPops: useStore(store, (x) => x.hiddenPops),
+    hiddenStatuses: useStore(store, (x) => x.hiddenStatuses),
+    hiddenRegions: useStore(store, (x) => x.hiddenRegions),
+    showBox: useStore(store, (x) => x.showBox),
+    showTips: useStore(store, (x) => x.showTips),
+  };
   const popCounts = model.manifest.populations.map((p) => p.count);
   return (
     <section className="panel" aria-label="show and hide">

@@ -22,6 +22,8 @@ export class AxonLayer {
   readonly object = new THREE.Group();
   /** drawn alone, on top of the picture, in refinement passes */
   readonly refineObject: THREE.LineSegments;
+  /** every visible growth cone, drawn over the picture when refinement completes */
+  readonly refineTips: THREE.Points;
 
   private readonly model: RunModel;
   private readonly position: THREE.BufferAttribute;
@@ -35,6 +37,9 @@ export class AxonLayer {
   private readonly tailLines: THREE.LineSegments;
   private readonly fullLines: THREE.LineSegments;
   private readonly tips: THREE.Points;
+  private readonly tipIndex: Uint32Array;
+  /** how many axons' cones are drawn: the sample's while moving, every visible one when still */
+  private tipCount = 0;
   private readonly selection = new THREE.Group();
   private readonly tailBuffer: Uint32Array;
   private tube: THREE.Mesh | null = null;
@@ -42,7 +47,9 @@ export class AxonLayer {
 
   private visibleOrder: Int32Array;
   private readonly moveStride: number;
-  private sampleCache = new Map<number, PathIndex>();
+  /** sample levels built so far, each with its own geometry: switching level then only switches
+   *  geometry (a new geometry's first draw costs a buffer upload and a vertex array) */
+  private sampleCache = new Map<number, { idx: PathIndex; geom: THREE.BufferGeometry }>();
   private sample: PathIndex | null = null;
   private full: PathIndex | null = null;
   private frame = 0;
@@ -95,15 +102,27 @@ export class AxonLayer {
     this.fullLines = this.lines(new Uint32Array(0));
     this.refineObject = this.lines(new Uint32Array(0));
 
+    // Growth cones of the shown frame through an index (vertex f·N + a), so that while moving only
+    // the sampled axons' cones are drawn: ten thousand discs are a large part of a software frame.
     const tipGeom = new THREE.BufferGeometry();
     tipGeom.setAttribute('position', this.position);
+    this.tipIndex = new Uint32Array(Math.max(1, N));
+    tipGeom.setIndex(new THREE.BufferAttribute(this.tipIndex, 1).setUsage(THREE.DynamicDrawUsage));
     this.tips = new THREE.Points(tipGeom, this.tipMaterial);
     this.tips.frustumCulled = false;
     this.tips.renderOrder = 2;
+    const refineTipGeom = new THREE.BufferGeometry();
+    refineTipGeom.setAttribute('position', this.position);
+    refineTipGeom.setIndex(new THREE.BufferAttribute(new Uint32Array(Math.max(1, N)), 1).setUsage(THREE.DynamicDrawUsage));
+    refineTipGeom.setDrawRange(0, 0);
+    this.refineTips = new THREE.Points(refineTipGeom, this.tipMaterial);
+    this.refineTips.frustumCulled = false;
+    this.refineTips.renderOrder = 2;
 
     this.object.add(this.sampleLines, this.tailLines, this.fullLines, this.tips, this.selection);
     this.moveStride = Math.max(1, Math.ceil((F - 1) / 160));
     this.visibleOrder = model.order;
+    this.tipCount = N;
     this.setFrame(0);
   }
 
@@ -135,10 +154,8 @@ export class AxonLayer {
     let k = 0;
     for (let i = 0; i < order.length; i++) if (mask[order[i]]) vis[k++] = order[i];
     this.visibleOrder = vis.subarray(0, k);
-    this.sampleCache.clear();
-    this.sample = null;
+    this.clearSamples();
     this.full = null;
-    this.setIndex(this.sampleLines, new Uint32Array(0));
     this.setIndex(this.fullLines, new Uint32Array(0));
     this.setIndex(this.refineObject, new Uint32Array(0));
     this.setFrame(this.frame);
@@ -156,7 +173,7 @@ export class AxonLayer {
     const F = this.model.F, N = this.model.N;
     this.frame = Math.max(0, Math.min(F - 1, f));
     this.tipMaterial.uniforms.uFrame.value = this.frame;
-    this.tips.geometry.setDrawRange(this.frame * N, N);
+    this.updateTips();
     if (this.sample) {
       this.sampleLines.geometry.setDrawRange(0, this.sample.prefixEnd[this.frame] ?? 0);
       const n = tailIndex(this.model.positions, N, this.sample.axons, this.sample.stride, this.frame, this.tailBuffer);
@@ -168,6 +185,18 @@ export class AxonLayer {
     }
     if (this.full) this.fullLines.geometry.setDrawRange(0, this.full.prefixEnd[this.frame] ?? 0);
     this.updateSelection();
+  }
+
+  private updateTips(): void {
+    const N = this.model.N, row = this.frame * N;
+    const list = this.visibleOrder;
+    const n = Math.min(this.tipCount, list.length);
+    for (let i = 0; i < n; i++) this.tipIndex[i] = row + list[i];
+    const idx = this.tips.geometry.getIndex()!;
+    idx.clearUpdateRanges();
+    idx.addUpdateRange(0, n);
+    idx.needsUpdate = true;
+    this.tips.geometry.setDrawRange(0, n);
   }
 
   setTipsVisible(on: boolean): void {
@@ -197,10 +226,11 @@ export class AxonLayer {
     }
     if (this.sample !== idx) {
       this.sample = idx;
-      this.setIndex(this.sampleLines, idx.index);
+      this.sampleLines.geometry = this.sampleCache.get(k)!.geom;
     }
     this.sampleLines.visible = this.tailLines.visible = true;
     this.fullLines.visible = false;
+    this.tipCount = k;
     this.setFrame(this.frame);
     return { axons: k, segments: (idx.prefixEnd[this.frame] ?? 0) / 2 };
   }
@@ -216,7 +246,21 @@ export class AxonLayer {
     if (this.fullLines.geometry.getIndex()?.array !== idx.index) this.setIndex(this.fullLines, idx.index);
     this.sampleLines.visible = this.tailLines.visible = false;
     this.fullLines.visible = true;
+    this.tipCount = this.visibleOrder.length;
     this.setFrame(this.frame);
+  }
+
+  /** Readies `refineTips` to draw every visible axon's growth cone at the shown frame. */
+  prepareRefineTips(): void {
+    const N = this.model.N, row = this.frame * N, list = this.visibleOrder;
+    const g = this.refineTips.geometry;
+    const idx = g.getIndex()!;
+    const arr = idx.array as Uint32Array;
+    for (let i = 0; i < list.length; i++) arr[i] = row + list[i];
+    idx.clearUpdateRanges();
+    idx.addUpdateRange(0, list.length);
+    idx.needsUpdate = true;
+    g.setDrawRange(0, list.length);
   }
 
   /** Sets the refinement object to draw segments [first, first + count) of the full picture;
@@ -231,7 +275,8 @@ export class AxonLayer {
   }
 
   dispose(): void {
-    for (const o of [this.sampleLines, this.tailLines, this.fullLines, this.refineObject]) releaseGeometry(o.geometry);
+    this.clearSamples();
+    for (const o of [this.sampleLines, this.tailLines, this.fullLines, this.refineObject, this.refineTips]) releaseGeometry(o.geometry);
     this.tips.geometry.dispose(); // the last user of the shared positions frees them
     this.lineMaterial.dispose();
     this.tipMaterial.dispose();
@@ -275,14 +320,30 @@ export class AxonLayer {
   }
 
   private sampleIndex(k: number): PathIndex {
-    let idx = this.sampleCache.get(k);
-    if (!idx) {
+    let entry = this.sampleCache.get(k);
+    if (!entry) {
       const { positions, F, N } = this.model;
       const stride = k === this.visibleOrder.length && k <= 64 ? 1 : this.moveStride;
-      idx = buildPathIndex(positions, F, N, this.visibleOrder.subarray(0, k), stride);
-      this.sampleCache.set(k, idx);
+      const idx = buildPathIndex(positions, F, N, this.visibleOrder.subarray(0, k), stride);
+      const geom = new THREE.BufferGeometry();
+      geom.setAttribute('position', this.position);
+      geom.setIndex(new THREE.BufferAttribute(idx.index, 1));
+      geom.setDrawRange(0, 0);
+      entry = { idx, geom };
+      this.sampleCache.set(k, entry);
     }
-    return idx;
+    return entry.idx;
+  }
+
+  private clearSamples(): void {
+    const keep = this.sampleLines.geometry;
+    this.sampleLines.geometry = new THREE.BufferGeometry();
+    this.sampleLines.geometry.setAttribute('position', this.position);
+    this.sampleLines.geometry.setIndex(new THREE.BufferAttribute(new Uint32Array(0), 1));
+    for (const { geom } of this.sampleCache.values()) releaseGeometry(geom);
+    if (![...this.sampleCache.values()].some((e) => e.geom === keep)) releaseGeometry(keep);
+    this.sampleCache.clear();
+    this.sample = null;
   }
 
   private fullIndex(): PathIndex {

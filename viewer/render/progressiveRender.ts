@@ -13,7 +13,7 @@
 // it.
 import type * as THREE from 'three';
 import type { AxonLayer } from '../geometry/axonLayer.ts';
-import { FrameCost } from './frameCost.ts';
+import { FrameBudget, RateEstimate } from './frameBudget.ts';
 
 /** Target drawing time per frame while moving, ms. */
 export const MOVING_FRAME_MS = 50;
@@ -39,7 +39,15 @@ export interface DrawReport {
 }
 
 export class ProgressiveRenderer {
-  readonly cost = new FrameCost();
+  /** segments per moving frame (steered by measured frame times) */
+  readonly movingBudget = new FrameBudget(60_000, MOVING_FRAME_MS, 3_000, 20_000_000);
+  /** segments per refinement pass */
+  readonly chunkBudget = new FrameBudget(150_000, CHUNK_MS, 30_000, 20_000_000);
+  /** ms per segment, learnt from refinement passes (which draw paths only); starting guess
+   *  from a SwiftShader measurement */
+  readonly perSegmentMs = new RateEstimate(6e-4);
+  /** ms of a whole-scene frame that is not paths (regions, growth cones, overlays) */
+  readonly sceneMs = new RateEstimate(15);
   private pending: 'moving' | 'still' | null = 'moving';
   private refining = false;
   private cursor = 0;
@@ -94,30 +102,30 @@ export class ProgressiveRenderer {
     if (this.pending === 'moving') {
       this.pending = null;
       const t0 = performance.now();
-      const choice = layer.useSample(this.cost.segmentsWithin(MOVING_FRAME_MS));
+      const choice = layer.useSample(this.movingBudget.value);
       this.lastPrepareMs = performance.now() - t0;
       this.sampleAxons = choice.axons;
       const first = !this.drawnOnce;
       const ms = this.draw(this.scene, camera, true);
       // the first frame also pays one-off costs (first use of buffers and pipelines): not a sample
-      if (!first) this.cost.observe(choice.segments, ms);
+      if (!first) this.learnScene(choice.segments, ms, this.movingBudget);
       this.report(choice.axons === visible ? 'all' : 'sample', choice.axons, choice.axons === visible ? 1 : 0, ms, choice.segments);
       return;
     }
     if (this.pending === 'still') {
       this.pending = null;
       const total = layer.fullSegments();
-      if (this.cost.predictMs(total) <= STILL_FRAME_MS || total === 0) {
+      if (this.sceneMs.value + this.perSegmentMs.value * total <= STILL_FRAME_MS || total === 0) {
         layer.useFull();
         const ms = this.draw(this.scene, camera, true);
-        this.cost.observe(total, ms);
+        this.learnScene(total, ms, null);
         this.report('all', visible, 1, ms, total);
         return;
       }
-      const choice = layer.useSample(this.cost.segmentsWithin(CHUNK_MS));
+      const choice = layer.useSample(this.movingBudget.value);
       this.sampleAxons = choice.axons;
       const ms = this.draw(this.scene, camera, true);
-      this.cost.observe(choice.segments, ms);
+      this.learnScene(choice.segments, ms, null);
       this.refining = true;
       this.cursor = 0;
       this.total = total;
@@ -125,15 +133,27 @@ export class ProgressiveRenderer {
       return;
     }
     if (this.refining) {
-      const chunk = this.cost.segmentsWithin(CHUNK_MS, 30_000);
+      const chunk = Math.round(this.chunkBudget.value);
       const n = layer.refineRange(this.cursor, chunk);
+      const last = this.cursor + chunk >= this.total;
+      // the last pass also draws every growth cone (the base frame drew the sample's only)
+      if (last) layer.prepareRefineTips();
+      layer.refineTips.visible = last;
       const ms = this.draw(this.refineScene, camera, false);
-      this.cost.observe(n, ms);
+      this.chunkBudget.update(n, ms);
+      if (n > 10_000 && !last) this.perSegmentMs.add(ms / n);
       this.cursor += chunk;
       const done = this.cursor >= this.total;
       if (done) this.refining = false;
       this.report(done ? 'all' : 'refining', done ? visible : this.sampleAxons, Math.min(1, this.cursor / this.total), ms, n);
     }
+  }
+
+  /** Learns from a whole-scene frame: what it cost beyond its paths, and (while moving) the
+   *  budget for the next one. */
+  private learnScene(segments: number, ms: number, budget: FrameBudget | null): void {
+    this.sceneMs.add(Math.max(1, ms - this.perSegmentMs.value * segments));
+    budget?.update(segments, ms);
   }
 
   private draw(scene: THREE.Scene, camera: THREE.Camera, clear: boolean): number {

@@ -21,7 +21,8 @@ export function warmUpShaders(renderer: THREE.WebGLRenderer, camera: THREE.Camer
   const regions = new RegionLayer(m);
   const field = new FieldLayer(m.regions.filter((r): r is SheetRegion => r.shape === 'sheet'));
   const scene = new THREE.Scene();
-  scene.add(regions.object, field.object, axons.object, axons.refineObject);
+  axons.prepareRefineTips();
+  scene.add(regions.object, field.object, axons.object, axons.refineObject, axons.refineTips);
   kept.push({ axons, regions, field });
   // Compiling the programs is not all: SwiftShader also builds a pipeline for each program and
   // draw state (points or lines, blending, depth writes) at its first draw, so the stand-in is
