@@ -200,6 +200,38 @@ describe('viewer in headless Chromium', () => {
     await page.close();
   });
 
+  it('play advances the time; hiding a population removes its axons from the picture and the plots', async () => {
+    const { page } = await open(ctx, url('?run=fx&t=0'));
+    await settled(page);
+    const t0 = await page.evaluate(() => window.__axonloom!.store!.get().timeH);
+    await page.locator('[data-testid="play"]').click();
+    await page.waitForTimeout(1500);
+    await page.locator('[data-testid="play"]').click(); // pause
+    const t1 = await page.evaluate(() => window.__axonloom!.store!.get().timeH);
+    // speed 1× plays the whole run in 12 s (viewer/state/viewState.ts PLAY_SECONDS)
+    const dur = fx.manifest.frameTimesH.at(-1)!;
+    expect(t1 - t0).toBeGreaterThan(dur * (1 / 12) * 0.5);
+    expect(t1 - t0).toBeLessThan(dur * (2.5 / 12));
+    expect(await text(page, '[data-testid="time-0"]')).not.toBe('t = 0.0 h');
+
+    await page.evaluate((h) => window.__axonloom!.store!.set({ timeH: h }), dur);
+    await settled(page);
+    const all = await canvasPixels(page);
+    await page.locator('[data-testid="pop-late"]').uncheck();
+    await settled(page);
+    const early = await canvasPixels(page);
+    expect(await pixelDifference(page, all, early)).toBeGreaterThan(0.01);
+    expect(await text(page, '[data-testid="draw-note"]')).toContain(`all ${fx.manifest.populations[0].count.toLocaleString('en-US')} axons`);
+    const shown = await page.locator('[data-testid="error-histogram"]').getAttribute('data-mean');
+    // the histogram now summarises the remaining population only: its mean is theirs
+    const err = fx.axons.numbers('error_um'), pop = fx.axons.strings('population');
+    let sum = 0, n = 0;
+    for (let a = 0; a < err.length; a++) if (pop[a] === 'early') { sum += err[a]; n++; }
+    expect(Number(shown)).toBeCloseTo(sum / n, 6);
+    await shot(page, 'fx-early-only');
+    await page.close();
+  });
+
   it('path escapes are refused with 404, also when asked by the page', async () => {
     const raw = (path: string) => new Promise<number>((resolve, reject) => {
       const req = request({ host: '127.0.0.1', port: server.port, path }, (res) => {
