@@ -139,11 +139,15 @@ function SheetPlot(p: {
     ctx.textAlign = 'center';
     ctx.font = '12px system-ui, sans-serif';
     ctx.fillText(`u${p.uName ? ` (${p.uName})` : ''}`, MARGIN.l + PLOT / 2, H - 3);
-    ctx.save();
-    ctx.translate(11, MARGIN.t + PLOT / 2);
-    ctx.rotate(-Math.PI / 2);
-    ctx.fillText(`v${p.vName ? ` (${p.vName})` : ''}`, 0, 0);
-    ctx.restore();
+    if (p.vName) {
+      ctx.save();
+      ctx.translate(11, MARGIN.t + PLOT / 2);
+      ctx.rotate(-Math.PI / 2);
+      ctx.fillText(`v (${p.vName})`, 0, 0);
+      ctx.restore();
+    } else {
+      ctx.fillText('v', 10, MARGIN.t + PLOT / 2 + 4); // a lone letter reads better upright
+    }
   });
   const onClick = (e: React.MouseEvent<HTMLCanvasElement>) => {
     const r = e.currentTarget.getBoundingClientRect();
