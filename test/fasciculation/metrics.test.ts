@@ -52,14 +52,14 @@ describe('fasciculatedFraction on hand geometry', () => {
     // B's midpoint x is within r_f of A when x ≤ 100 + 8.66 = 108.66 → 55, …, 105: 6.
     const m = metrics([line(0, 100, 0, 10), line(50, 150, 5, 10)], 10);
     expect(m.fasciculatedFraction).toBeCloseTo(0.6, 12);
-    expect(m.bundleCount).toBe(1); // each shares 60 % ≥ the default 50 %
+    expect(m.bundleCount).toBe(1); // B is the nearest along 60 % of each, ≥ the default 25 %
     expect(metrics([line(0, 100, 0, 10), line(50, 150, 5, 10)], 10, undefined, 0.7).bundleCount).toBe(0);
   });
 
   it('adhesion is directional: only A adheres to B, so only A’s share counts', () => {
     const m = metrics([line(0, 100, 0, 10), line(50, 150, 5, 10)], 10, (a) => a === 0);
     expect(m.fasciculatedFraction).toBeCloseTo(0.3, 12); // 60 of 200 µm
-    expect(m.bundleCount).toBe(1); // A links to B (60 % of A), links are undirected
+    expect(m.bundleCount).toBe(1); // A links to B (nearest along 60 % of A); links are undirected
   });
 
   it('bundles are connected components: a chain of three plus a stray', () => {
@@ -68,6 +68,18 @@ describe('fasciculatedFraction on hand geometry', () => {
     expect([m.bundleCount, m.meanBundleSize, m.largestBundle]).toEqual([1, 3, 3]);
     expect(m.bundledAxonFraction).toBe(0.75);
     expect(m.fasciculatedFraction).toBeCloseTo(0.75, 12); // D's 100 µm of 400 is alone
+  });
+
+  it('a shaft crossed in passing links nothing; the partner run along is kept', () => {
+    // A: x 0..100 at y = 0; B parallel at y = 8 (r_f = 10); C along z from −200 to 200 at
+    // x = 50, y = 0, crossing A. A runs along B all the way (8 < 10, kept even where C is
+    // nearer); C is within r_f of A or B only for |z| < 10 (20 of 400 µm, 5 % < 10 %).
+    const C = Array.from({ length: 41 }, (_, i) => [50, 0, -200 + 10 * i] as V3);
+    const m = metrics([line(0, 100, 0, 10), line(0, 100, 8, 10), C], 10);
+    expect([m.bundleCount, m.meanBundleSize]).toEqual([1, 2]);
+    expect(m.bundledAxonFraction).toBeCloseTo(2 / 3, 12);
+    // C's two segments either side of z = 0 (midpoints z = ±5, within 10 of A and of B: √(8² + 5²) = 9.4)
+    expect(m.fasciculatedLengthUm).toBeCloseTo(200 + 20, 9);
   });
 
   it('two separate pairs: two bundles of mean size 2', () => {
