@@ -4,7 +4,7 @@ import { parseOptions, parseVec3, UsageError } from './args.ts';
 import { loadScene, parseEdit } from '../scene/load.ts';
 import { resolveScene } from '../scene/edits.ts';
 import { compileRegions } from '../geometry/regions.ts';
-import { buildFields } from '../fields/index.ts';
+import { buildFields, cueOfField, fieldNames } from '../fields/index.ts';
 
 const help = `Usage: axonloom probe SCENE --cue NAME --at x,y,z [--at x,y,z ...] [options]
 
@@ -34,10 +34,11 @@ export const command: Command = {
     const points = values.at.map((t) => parseVec3(t, '--at'));
     const edits = (values.perturb ?? []).map((t) => parseEdit(t));
     const { scene } = resolveScene(loadScene(positionals[0]), values.variant, edits, positionals[0]);
-    if (!scene.cues.some((c) => c.name === values.cue)) {
-      throw new UsageError(`probe: no cue named "${values.cue}" (cues: ${scene.cues.map((c) => c.name).join(', ') || 'none'})`);
+    const owner = cueOfField(scene, values.cue); // a border species is built by its border cue
+    if (!owner) {
+      throw new UsageError(`probe: no cue named "${values.cue}" (cues: ${fieldNames(scene).join(', ') || 'none'})`);
     }
-    const only = { ...scene, cues: scene.cues.filter((c) => c.name === values.cue) };
+    const only = { ...scene, cues: [owner] };
     const { fields } = buildFields(only, compileRegions(scene.regions));
     const field = fields.get(values.cue)!;
     const grad = new Float64Array(3);

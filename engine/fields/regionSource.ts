@@ -30,5 +30,7 @@ function regionCentre(cue: RegionCue, ctx: BuildContext): [number, number, numbe
   const r = ctx.scene.regions.find((x) => x.name === cue.region)!;
   if (r.shape === 'box') return [(r.min[0] + r.max[0]) / 2, (r.min[1] + r.max[1]) / 2, (r.min[2] + r.max[2]) / 2];
   if (r.shape === 'ellipsoid') return r.center;
-  return r.origin;
+  if (r.shape === 'tube') return [(r.from[0] + r.to[0]) / 2, (r.from[1] + r.to[1]) / 2, (r.from[2] + r.to[2]) / 2];
+  if (r.shape === 'sheet') return r.origin;
+  throw new Error(`internal: a ${r.shape} region cannot secrete (load.ts rejects it)`);
 }

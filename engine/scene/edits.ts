@@ -3,6 +3,7 @@
 import type { Scene, Edit } from './schema.ts';
 import { SceneError, type SceneProblem } from './errors.ts';
 import { checkEdit } from './load.ts';
+import { profileMean } from '../fields/profile.ts';
 
 export interface ResolvedScene {
   scene: Scene;
@@ -39,10 +40,10 @@ export function resolveScene(scene: Scene, variant?: string, extra: Edit[] = [],
 function applyEdit(scene: Scene, e: Edit): void {
   switch (e.op) {
     case 'knockout':
-      cueNamed(scene, e.cue).scale = 0;
+      scalableNamed(scene, e.cue).scale = 0;
       return;
     case 'scale':
-      cueNamed(scene, e.cue).scale *= e.factor;
+      scalableNamed(scene, e.cue).scale *= e.factor;
       return;
     case 'source': {
       const cue = cueNamed(scene, e.cue);
@@ -51,6 +52,19 @@ function applyEdit(scene: Scene, e: Edit): void {
     }
     case 'knockin':
       return; // per-axon: applied when the population's receptor levels are built
+    case 'adhesion':
+      for (const p of scene.populations) if (p.adhesion && (e.population === undefined || p.name === e.population)) p.adhesion.weight = e.weight;
+      return;
+    case 'flatten': {
+      // level → m + f·(level − m) around the mean m: amplitude·f, the rest moved into the offset
+      const cue = cueNamed(scene, e.cue);
+      if (cue.kind !== 'expressed') return;
+      const p = cue.profile;
+      const m = profileMean(p) - p.offset;
+      p.offset += (1 - e.factor) * m;
+      p.amplitude *= e.factor;
+      return;
+    }
   }
 }
 
@@ -58,4 +72,11 @@ function cueNamed(scene: Scene, name: string) {
   const cue = scene.cues.find((c) => c.name === name);
   if (!cue) throw new Error(`internal: edit names unknown cue "${name}" after checking`);
   return cue;
+}
+
+/** The cue, or the border species, called `name`: both carry the `scale` that knockout and
+ *  scale edit (a species' scale multiplies its production inside the coupled border solve). */
+function scalableNamed(scene: Scene, name: string): { scale: number } {
+  const species = scene.cues.flatMap((c) => (c.kind === 'border' ? c.species : [])).find((s) => s.name === name);
+  return species ?? cueNamed(scene, name);
 }

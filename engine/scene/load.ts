@@ -3,8 +3,9 @@
 import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import { Scene, Edit } from './schema.ts';
-import type { Scene as SceneT, Edit as EditT } from './schema.ts';
+import type { Scene as SceneT, Edit as EditT, Cue as CueT, BorderSpecies as BorderSpeciesT } from './schema.ts';
 import { SceneError, problemsFromZod, closest, type SceneProblem } from './errors.ts';
+import { checkMapping } from '../map/check.ts';
 
 /** Largest grid the engine will solve or store: 64 M nodes (≈ 0.5 GB as float64). */
 export const MAX_GRID_NODES = 64_000_000;
@@ -81,6 +82,13 @@ export function checkScene(scene: SceneT): SceneProblem[] {
   const regions = uniqueNames(scene.regions, 'regions', 'region', push);
   const cues = uniqueNames(scene.cues, 'cues', 'cue', push);
   uniqueNames(scene.populations, 'populations', 'population', push);
+  // A border cue's species are cue names too (receptors bind them, edits and probe name them).
+  const species = borderSpecies(scene);
+  const speciesNames = new Set<string>();
+  for (const { index, j, sp } of species) {
+    if (cues.has(sp.name) || speciesNames.has(sp.name)) push(['cues', index, 'species', j, 'name'], `duplicate cue name "${sp.name}"`);
+    speciesNames.add(sp.name);
+  }
 
   scene.regions.forEach((r, i) => {
     if (r.shape === 'box') {
@@ -92,6 +100,8 @@ export function checkScene(scene: SceneT): SceneProblem[] {
       if (Math.hypot(ux, uy, uz) === 0) push(['regions', i, 'uAxis'], 'must not be zero');
       else if (Math.hypot(vx, vy, vz) === 0) push(['regions', i, 'vAxis'], 'must not be zero');
       else if (Math.hypot(cx, cy, cz) < 1e-9 * Math.hypot(ux, uy, uz) * Math.hypot(vx, vy, vz)) push(['regions', i, 'vAxis'], 'must not be parallel to uAxis');
+    } else if (r.shape === 'domain') {
+      problems.push(...checkDomain(scene, r, i, species));
     }
   });
 
@@ -101,7 +111,9 @@ export function checkScene(scene: SceneT): SceneProblem[] {
     else if (!shapes.includes(r.shape)) push(path, `region "${nameRef}" is a ${r.shape}; expected ${shapes.join(' or ')}`);
   };
   const refCue = (path: (string | number)[], nameRef: string) => {
-    if (!cues.has(nameRef)) push(path, `no cue named "${nameRef}"${suggest(nameRef, [...cues.keys()])}`);
+    const border = scene.cues.find((c) => c.name === nameRef && c.kind === 'border');
+    if (border?.kind === 'border') push(path, `"${nameRef}" is a border cue; bind one of its species (${border.species.map((s) => `"${s.name}"`).join(' or ')})`);
+    else if (!cues.has(nameRef) && !speciesNames.has(nameRef)) push(path, `no cue named "${nameRef}"${suggest(nameRef, [...cues.keys(), ...speciesNames])}`);
   };
 
   scene.cues.forEach((c, i) => {
@@ -113,7 +125,12 @@ export function checkScene(scene: SceneT): SceneProblem[] {
         if (x < 0 || x > size[a]) push(['cues', i, 'extraSources', j, 'position', a], `must lie inside the volume [0, ${size[a]}] (got ${x})`);
       }));
       if (c.solve === 'analytic' && c.boundary) push(['cues', i, 'boundary'], 'applies only with solve "grid"');
-    } else if (c.kind === 'region') refRegion(['cues', i, 'region'], c.region, ['box', 'ellipsoid']);
+    } else if (c.kind === 'region') refRegion(['cues', i, 'region'], c.region, ['box', 'ellipsoid', 'tube']);
+    else if (c.kind === 'border') c.species.forEach((sp, j) => refRegion(['cues', i, 'species', j, 'region'], sp.region, ['box', 'ellipsoid', 'tube']));
+    else if (c.kind === 'lining') {
+      refRegion(['cues', i, 'region'], c.region, ['tube']);
+      if (c.profile.axis !== 'u') push(['cues', i, 'profile', 'axis'], `must be "u" (along the tube) for a lining (got "${c.profile.axis}")`);
+    }
     else if (c.kind === 'expressed') refRegion(['cues', i, 'region'], c.region, ['sheet']);
     else if (c.kind === 'relay') {
       const r = regions.get(c.region);
@@ -126,7 +143,7 @@ export function checkScene(scene: SceneT): SceneProblem[] {
   const receptorNames = new Set<string>();
   scene.populations.forEach((p, i) => {
     refRegion(['populations', i, 'source'], p.source, ['sheet']);
-    if (p.target !== undefined) refRegion(['populations', i, 'target'], p.target, ['box', 'ellipsoid', 'sheet']);
+    if (p.target !== undefined) refRegion(['populations', i, 'target'], p.target, ['box', 'ellipsoid', 'sheet', 'tube', 'domain']);
     if (p.direction && Math.hypot(...p.direction) === 0) push(['populations', i, 'direction'], 'must not be zero');
     const seen = new Set<string>();
     p.receptors.forEach((r, j) => {
@@ -137,25 +154,58 @@ export function checkScene(scene: SceneT): SceneProblem[] {
     });
   });
 
+  problems.push(...checkAdhesion(scene));
   for (const [variant, edits] of Object.entries(scene.variants)) {
     edits.forEach((e, j) => problems.push(...checkEdit(scene, e, ['variants', variant, j], receptorNames)));
   }
+  problems.push(...checkMapping(scene));
+  return problems;
+}
+
+/** Adhesion classes: every class a population adheres to must be some population's class, or
+ *  its cones would look for shafts that can never exist. */
+function checkAdhesion(scene: SceneT): SceneProblem[] {
+  const problems: SceneProblem[] = [];
+  const classes = [...new Set(scene.populations.flatMap((p) => (p.adhesion ? [p.adhesion.class] : [])))];
+  scene.populations.forEach((p, i) => {
+    p.adhesion?.adheresTo.forEach((c, j) => {
+      if (!classes.includes(c)) {
+        problems.push({ path: ['populations', i, 'adhesion', 'adheresTo', j], message: `no population has adhesion class "${c}"${suggest(c, classes)}` });
+      }
+    });
+  });
   return problems;
 }
 
 /** An edit refers to things that exist; shared by variants and ad-hoc `--perturb` edits. */
 export function checkEdit(scene: SceneT, e: EditT, path: (string | number)[], receptors?: Set<string>): SceneProblem[] {
   const problems: SceneProblem[] = [];
-  const cueNames = scene.cues.map((c) => c.name);
+  const cueNames = [...scene.cues.map((c) => c.name), ...borderSpecies(scene).map((s) => s.sp.name)];
   if ('cue' in e && !cueNames.includes(e.cue)) {
     problems.push({ path: [...path, 'cue'], message: `no cue named "${e.cue}"${suggest(e.cue, cueNames)}` });
   }
   if (e.op === 'source') {
     const cue = scene.cues.find((c) => c.name === e.cue);
     if (cue && cue.kind !== 'point') problems.push({ path: [...path, 'cue'], message: `"${e.cue}" is a ${cue.kind} cue; "source" moves point cues only` });
+    const owner = borderSpecies(scene).find((s) => s.sp.name === e.cue);
+    if (owner) problems.push({ path: [...path, 'cue'], message: `"${e.cue}" is a species of border cue "${owner.cue.name}"; "source" moves point cues only` });
     e.position.forEach((x, a) => {
       if (x < 0 || x > scene.volume.size[a]) problems.push({ path: [...path, 'position', a], message: `must lie inside the volume [0, ${scene.volume.size[a]}] (got ${x})` });
     });
+  }
+  if (e.op === 'flatten') {
+    const cue = scene.cues.find((c) => c.name === e.cue);
+    if (cue && cue.kind !== 'expressed') problems.push({ path: [...path, 'cue'], message: `"${e.cue}" is a ${cue.kind} cue; "flatten" applies to expressed cues only` });
+  }
+  if (e.op === 'adhesion') {
+    const withAdhesion = scene.populations.filter((p) => p.adhesion).map((p) => p.name);
+    if (e.population === undefined) {
+      if (!withAdhesion.length) problems.push({ path, message: '"adhesion" edits fasciculation, but no population has an adhesion block' });
+    } else if (!scene.populations.some((p) => p.name === e.population)) {
+      problems.push({ path: [...path, 'population'], message: `no population named "${e.population}"${suggest(e.population, scene.populations.map((p) => p.name))}` });
+    } else if (!withAdhesion.includes(e.population)) {
+      problems.push({ path: [...path, 'population'], message: `population "${e.population}" has no adhesion block` });
+    }
   }
   if (e.op === 'knockin') {
     const all = receptors ?? new Set(scene.populations.flatMap((p) => p.receptors.map((r) => r.name)));
@@ -165,6 +215,51 @@ export function checkEdit(scene: SceneT, e: EditT, path: (string | number)[], re
     }
   }
   return problems;
+}
+
+/** Every species of every border cue, with where it sits in the scene. */
+function borderSpecies(scene: SceneT) {
+  const out: { cue: Extract<CueT, { kind: 'border' }>; index: number; j: number; sp: BorderSpeciesT }[] = [];
+  scene.cues.forEach((c, index) => {
+    if (c.kind === 'border') c.species.forEach((sp, j) => out.push({ cue: c, index, j, sp }));
+  });
+  return out;
+}
+
+/** A domain region names a species of a border cue, says which side it means, and keeps its
+ *  thresholds inside the range the species can take: 0 < level < rate·scale/decay, the
+ *  unrepressed level of a region producing everywhere (no steady level can exceed it, by the
+ *  maximum principle), so a threshold outside it is never crossed or always is. */
+function checkDomain(scene: SceneT, r: Extract<SceneT['regions'][number], { shape: 'domain' }>, i: number, species: ReturnType<typeof borderSpecies>): SceneProblem[] {
+  const out: SceneProblem[] = [];
+  const at = (key: string, message: string) => out.push({ path: ['regions', i, key], message });
+  const owner = species.find((s) => s.sp.name === r.species);
+  if (!owner) {
+    at('species', `no border species named "${r.species}"${suggest(r.species, species.map((s) => s.sp.name))}`);
+    return out;
+  }
+  if (r.cue !== undefined && r.cue !== owner.cue.name) at('cue', `species "${r.species}" belongs to border cue "${owner.cue.name}", not "${r.cue}"`);
+  if (r.dominant === undefined && r.above === undefined && r.below === undefined) {
+    out.push({ path: ['regions', i], message: 'a domain needs "dominant", "above" or "below" to say which part of the border cue it is' });
+  }
+  const top = (owner.sp.rate * owner.sp.scale * owner.cue.scale) / owner.sp.decay;
+  for (const key of ['above', 'below'] as const) {
+    const t = r[key];
+    if (t !== undefined && !(t > 0 && t < top)) {
+      at(key, `must lie inside the range of species "${r.species}", 0 < level < ${fmtNum(top)} (rate × scale / decay: the most it can reach); got ${t}`);
+    }
+  }
+  if (r.above !== undefined && r.below !== undefined && !(r.above < r.below)) at('below', `must be greater than "above" (got ${r.below} ≤ ${r.above})`);
+  if (r.within !== undefined) {
+    const w = scene.regions.find((x) => x.name === r.within);
+    if (!w) at('within', `no region named "${r.within}"${suggest(r.within, scene.regions.map((x) => x.name))}`);
+    else if (!['box', 'ellipsoid', 'tube'].includes(w.shape)) at('within', `region "${r.within}" is a ${w.shape}; expected box, ellipsoid or tube`);
+  }
+  return out;
+}
+
+function fmtNum(v: number): string {
+  return Number(v.toPrecision(4)).toString();
 }
 
 function uniqueNames<T extends { name: string }>(

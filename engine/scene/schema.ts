@@ -53,9 +53,32 @@ export const SheetRegion = z.strictObject({
   vName: z.string().max(32).optional(),
 });
 
-export const Region = z.discriminatedUnion('shape', [BoxRegion, EllipsoidRegion, SheetRegion]);
+export const TubeRegion = z.strictObject({
+  ...regionBase,
+  shape: z.literal('tube'),
+  from: Vec3.describe('one end of the tube’s axis, µm'),
+  to: Vec3.describe('the other end, µm'),
+  radius: positive().describe('µm; the tube is every point within this distance of the from–to segment (a capsule)'),
+});
+
+/** A region set by a border cue's fields rather than by geometry: where one species dominates
+ *  the other and/or lies above or below a level (French-flag thresholds). See engine/geometry/domains.ts. */
+export const DomainRegion = z.strictObject({
+  ...regionBase,
+  shape: z.literal('domain'),
+  species: name().describe('a species of a border cue'),
+  cue: name().optional().describe('the border cue the species belongs to (optional; checked when given)'),
+  dominant: z.boolean().optional().describe('true: where this species exceeds the other; false: where the other exceeds it'),
+  above: z.number().optional().describe('where this species is above this level'),
+  below: z.number().optional().describe('where this species is below this level'),
+  within: name().optional().describe('limit the domain to this box, ellipsoid or tube'),
+});
+
+export const Region = z.discriminatedUnion('shape', [BoxRegion, EllipsoidRegion, SheetRegion, TubeRegion, DomainRegion]);
 export type Region = z.infer<typeof Region>;
 export type SheetRegion = z.infer<typeof SheetRegion>;
+export type TubeRegion = z.infer<typeof TubeRegion>;
+export type DomainRegion = z.infer<typeof DomainRegion>;
 
 // ---------------------------------------------------------------------------------------------
 // Profiles: a level as a function of one sheet coordinate t ∈ [0, 1] (u or v, optionally
@@ -103,7 +126,7 @@ export const PointCue = z.strictObject({
 export const RegionCue = z.strictObject({
   ...cueBase,
   kind: z.literal('region'),
-  region: name().describe('a box or ellipsoid region that secretes'),
+  region: name().describe('a box, ellipsoid or tube region that secretes'),
   ...chemistry,
   rate: nonNegative().describe('secretion per µm³ of region per second'),
   boundary: z.enum(['absorbing', 'reflecting']).default('absorbing'),
@@ -129,12 +152,46 @@ export const RelayCue = z.strictObject({
   contact: positive().default(15).describe('sensing distance from the region, µm'),
 });
 
-export const Cue = z.discriminatedUnion('kind', [PointCue, RegionCue, ExpressedCue, RelayCue]);
+/** A ligand lining a tube (a guidance corridor), graded along it: the profile's u runs along the
+ *  tube's axis from `from` (0) to `to` (1). Sensed by contact inside the tube and within
+ *  `contact` µm of its wall, where it fades linearly to 0 (see engine/fields/lining.ts). */
+export const LiningCue = z.strictObject({
+  ...cueBase,
+  kind: z.literal('lining'),
+  region: name().describe('the tube that expresses the ligand'),
+  profile: Profile,
+  contact: positive().default(15).describe('distance beyond the tube wall over which the level fades to 0, µm'),
+});
+
+/** One of a border cue's two morphogens; its name is a cue name (receptors bind it, probe samples it). */
+export const BorderSpecies = z.strictObject({
+  name: name(),
+  region: name().describe('the box, ellipsoid or tube that produces this species'),
+  rate: nonNegative().describe('unrepressed production per µm³ of region per second'),
+  ...chemistry,
+  repression: positive().describe('K: level of the other species that halves this one’s production'),
+  hill: positive().default(2).describe('Hill coefficient n of that repression'),
+  scale: nonNegative().default(1).describe('multiplies this species’ production inside the coupled solve; scale/knockout edits naming the species edit it'),
+});
+
+export const BorderCue = z.strictObject({
+  ...cueBase,
+  kind: z.literal('border'),
+  species: z.array(BorderSpecies).min(2).max(2).describe('exactly two mutually repressing species'),
+  boundary: z.enum(['absorbing', 'reflecting']).default('reflecting'),
+  tolerance: positive().max(0.1).default(1e-6).describe('relative error bound at which the coupled solve stops'),
+  maxIterations: z.number().int().positive().max(10_000).default(500),
+}).describe('two morphogens produced from opposite sides, each repressing the other; sampled by species name, the cue’s own name samples their difference (zero on the border); scale multiplies both productions');
+
+export const Cue = z.discriminatedUnion('kind', [PointCue, RegionCue, ExpressedCue, RelayCue, BorderCue, LiningCue]);
 export type Cue = z.infer<typeof Cue>;
 export type PointCue = z.infer<typeof PointCue>;
 export type RegionCue = z.infer<typeof RegionCue>;
 export type ExpressedCue = z.infer<typeof ExpressedCue>;
 export type RelayCue = z.infer<typeof RelayCue>;
+export type BorderCue = z.infer<typeof BorderCue>;
+export type LiningCue = z.infer<typeof LiningCue>;
+export type BorderSpecies = z.infer<typeof BorderSpecies>;
 
 // ---------------------------------------------------------------------------------------------
 // Populations of growth cones.
@@ -162,6 +219,49 @@ export const Sensing = z.strictObject({
 });
 export type Sensing = z.infer<typeof Sensing>;
 
+// Mapping onto a target sheet (engine/agents/targeting): once a growth cone contacts its target
+// sheet it moves within the sheet's (u, v), read through the receptors named in `signals`, and
+// settles where its stop rule says.
+export const MapSignal = z.strictObject({
+  receptor: name().describe('a receptor of this population (the axon-side molecule); the cue it binds must be expressed on the target sheet'),
+  mode: z.enum(['forward', 'reverse']).default('forward')
+    .describe('forward: ligand on the target (the cue), receptor on the axon, signal R·p(L); reverse: receptor on the target (the cue), ligand on the axon, signal L_target·p(axon level)'),
+});
+
+export const Competition = z.strictObject({
+  weight: nonNegative().default(1).describe('γ, energy of a fully overlapping pair of terminals; 0 turns competition off'),
+  radius: positive().optional().describe('terminals repel within this distance, µm (default: twice the mean terminal spacing on the target sheet)'),
+});
+
+export const Mapping = z.strictObject({
+  rule: z.enum(['balance', 'affinity']).describe('balance: gradient balance (Gierer 1983); affinity: chemoaffinity plus competition, stochastic energy updates (Koulakov & Tsigankov)'),
+  signals: z.array(MapSignal).min(1).max(16),
+  speed: positive().optional().describe('speed within the target sheet, µm/h (default: the population’s speed)'),
+  temperature: positive().default(0.005).describe('affinity rule: T in the acceptance probability 1/(1 + exp(ΔE/T)), energy units'),
+  exchange: z.number().min(0).max(1).default(0.5).describe('affinity rule with competition: share of proposals that swap places with a random terminal within the competition radius'),
+  competition: Competition.optional().describe('axon–axon competition for target space; omit for none'),
+  settleSteps: z.number().int().positive().default(20).describe('window of steps whose mean position is a terminal’s termination zone'),
+  settleDistance: positive().optional().describe('settle early when a window’s mean lies this close to the previous window’s, µm (omit: settle only after maxHours; crowded terminals slow down before they arrive, so early settling suits maps without competition)'),
+  maxHours: positive().default(60).describe('a terminal settles (status "terminated") after this long in the sheet, at its last window’s mean position, hours'),
+});
+export type Mapping = z.infer<typeof Mapping>;
+
+// Fasciculation (engine/agents/fasciculation.ts): growth cones within `radius` of another
+// axon's shaft, of a class they adhere to, are pulled toward it and aligned with it, and let go
+// where the guidance signal across the shaft outweighs that adhesion.
+export const Adhesion = z.strictObject({
+  class: name().describe('this population’s adhesion class, the name other populations’ adheresTo lists use'),
+  adheresTo: z.array(name()).min(1).max(64)
+    .describe('adhesion classes whose shafts these growth cones follow (list the own class to bundle with siblings); never the axon’s own shaft'),
+  radius: positive().default(15).describe('r_f: capture radius around a shaft, µm'),
+  weight: nonNegative().default(1).describe('w_f: weight of the fasciculation term in the steering sum; 0 turns adhesion off (the shafts still count in the metrics)'),
+  pull: nonNegative().default(1).describe('w_p: pull toward the nearest shaft point, full at distance r_f, zero on the shaft'),
+  align: nonNegative().default(1).describe('w_t: alignment with the shaft tangent, in the direction the cone is heading'),
+  release: positive().default(1)
+    .describe('θ: the cone lets go for a step where the guidance signal across the shaft exceeds θ × the adhesion term'),
+});
+export type Adhesion = z.infer<typeof Adhesion>;
+
 export const Population = z.strictObject({
   name: name(),
   count: z.number().int().positive().max(1_000_000),
@@ -174,6 +274,8 @@ export const Population = z.strictObject({
   direction: Vec3.optional().describe('initial heading (default: the source sheet normal)'),
   sensing: Sensing.default(Sensing.parse({})),
   receptors: z.array(Receptor).default([]),
+  adhesion: Adhesion.optional().describe('fasciculation: follow the shafts of earlier axons; omit for none'),
+  mapping: Mapping.optional().describe('how terminals move and settle within a target sheet; needs a sheet target'),
 });
 export type Population = z.infer<typeof Population>;
 
@@ -199,8 +301,27 @@ export const Edit = z.discriminatedUnion('op', [
     population: name().optional(),
   }),
   z.strictObject({ op: z.literal('source'), cue: name(), position: Vec3 }),
+  z.strictObject({ op: z.literal('adhesion'), population: name().optional(), weight: nonNegative() })
+    .describe('set the fasciculation weight w_f of a population with adhesion (of every such population when omitted); 0: no adhesion'),
+  z.strictObject({ op: z.literal('flatten'), cue: name(), factor: z.number().min(0).max(1) })
+    .describe('expressed cues: keep this fraction of the gradient around the profile’s mean level (0: uniform)'),
 ]);
 export type Edit = z.infer<typeof Edit>;
+
+// The expected topographic map: which source axis feeds each target axis, and whether reversed.
+const ExpectedAxis = z.strictObject({
+  from: z.enum(['u', 'v']).describe('the source-sheet axis that maps onto this target axis'),
+  reversed: z.boolean().default(false).describe('source 0 maps to target 1'),
+});
+
+export const ExpectedMap = z.strictObject({
+  u: ExpectedAxis.default({ from: 'u', reversed: false }).describe('what target u is expected to be'),
+  v: ExpectedAxis.default({ from: 'v', reversed: false }).describe('what target v is expected to be'),
+  ectopicUm: positive().optional().describe('a terminal further than this from its expected place is ectopic, µm (default: 15 % of the target sheet’s longer edge)'),
+  bins: z.number().int().min(2).max(100).default(10).describe('source bins for the duplication index'),
+  reference: z.string().min(1).optional().describe('a run directory whose terminations are the expected map instead of the axes (set by `run --reference`)'),
+});
+export type ExpectedMap = z.infer<typeof ExpectedMap>;
 
 export const Volume = z.strictObject({
   size: z.tuple([positive(), positive(), positive()]).describe('µm'),
@@ -218,6 +339,7 @@ export const Scene = z.strictObject({
   cues: z.array(Cue).default([]),
   populations: z.array(Population).default([]),
   variants: z.record(name(), z.array(Edit)).default({}),
+  expectedMap: ExpectedMap.optional().describe('the expected topographic map (default: target u from source u, v from v, neither reversed)'),
 });
 export type Scene = z.infer<typeof Scene>;
 export type SceneInput = z.input<typeof Scene>;

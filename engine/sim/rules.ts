@@ -6,6 +6,9 @@
 // undefined` (undefined when the scene does not use it) and add it to RULE_FACTORIES below.
 import type { World } from './simulate.ts';
 import type { ConePopulation } from '../agents/cones.ts';
+import { pathfindingRule } from '../metrics/pathfinding.ts';
+import { targetingRule } from '../agents/targeting/rule.ts';
+import { fasciculationRule } from '../agents/fasciculation.ts';
 
 export interface GrowthRule {
   readonly name: string;
@@ -31,7 +34,11 @@ export interface GrowthRule {
 export type RuleFactory = (world: World) => GrowthRule | undefined;
 
 /** Rules in the order they act each step. */
-export const RULE_FACTORIES: RuleFactory[] = [];
+export const RULE_FACTORIES: RuleFactory[] = [
+  pathfindingRule, // first: it only watches, and must see every "reached" before a rule keeps the axon growing
+  targetingRule,
+  fasciculationRule,
+];
 
 export function buildRules(world: World): GrowthRule[] {
   const rules: GrowthRule[] = [];
