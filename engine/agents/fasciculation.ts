@@ -55,6 +55,9 @@
 // on the hash grid against 4.3 s on the R-tree, end-of-run metrics 0.08 s against 1.1 s (a
 // likely reason: the R-tree indexes a 2D projection and filters the third axis chunk by chunk,
 // and a bundle's chunk boxes overlap). Smaller hash cells, r_f/2 and r_f/3, measured no faster.
+// test/bench/index.bench.ts agrees at uniform density (nearest segment within 15 µm, 500 steps
+// per axon): 5.0 µs per query on the hash grid against 15.8 on the R-tree at 1,000 axons, 7.8
+// against 58.9 at 10,000.
 
 import type { World } from '../sim/simulate.ts';
 import type { GrowthRule } from '../sim/rules.ts';
