@@ -20,6 +20,7 @@ import { SourceKey } from './components/SourceKey.tsx';
 import { AxonRecord } from './components/AxonRecord.tsx';
 import { MapCheck } from './components/MapCheck.tsx';
 import { formatCount } from './components/format.ts';
+import { RecordButton } from './record/RecordDialog.tsx';
 
 /** What the page exposes for the benchmark and the end-to-end tests. */
 export interface ViewerProbe {
@@ -158,6 +159,7 @@ function Layout({ names, models, url, runList, probe }: { names: string[]; model
           <span className="run-summary">loading {names.join(' and ')}…</span>
         )}
         {store && <CameraButtons store={store} />}
+        {store && models && <RecordButton models={models} store={store} link={link} />}
         <CompareChooser runs={runList} current={names} />
       </header>
       <main className="views">

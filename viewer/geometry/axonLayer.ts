@@ -250,6 +250,17 @@ export class AxonLayer {
     this.setFrame(this.frame);
   }
 
+  /** Hides the paths of the full-picture pass, keeping cones and selection: the recorder draws
+   *  the paths apart (through refineRange), adding each frame's new segments to the last. */
+  hidePaths(): void {
+    this.sampleLines.visible = this.tailLines.visible = this.fullLines.visible = false;
+  }
+
+  /** Growth-cone disc diameter in pixels (7 in the viewer; larger for large video frames). */
+  setTipSize(px: number): void {
+    this.tipMaterial.uniforms.uSize.value = px;
+  }
+
   /** Readies `refineTips` to draw every visible axon's growth cone at the shown frame. */
   prepareRefineTips(): void {
     const N = this.model.N, row = this.frame * N, list = this.visibleOrder;
