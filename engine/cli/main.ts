@@ -9,6 +9,7 @@ const commands: Record<string, () => Promise<Command>> = {
   probe: async () => (await import('./probe.ts')).command,
   view: async () => (await import('./view.ts')).command,
   compare: async () => (await import('./compare.ts')).command,
+  record: async () => (await import('./record.ts')).command,
 };
 
 /** Later commands register here; kept as a list so `axonloom --help` shows them in order. */
