@@ -64,9 +64,13 @@ function RecordDialog({ models, store, link, onClose }: RecordButtonProps & { on
   const abort = useRef<AbortController | null>(null);
   const download = useRef<HTMLAnchorElement>(null);
 
-  // the download's memory is given back when a new file replaces it or the dialog closes
-  useEffect(() => () => {
-    if (done) URL.revokeObjectURL(done.url);
+  // the browser's download starts as soon as the link to a new file is on the page (the link
+  // stays, for a second copy); its memory is given back when a newer file replaces it or the
+  // dialog closes
+  useEffect(() => {
+    if (!done) return;
+    download.current?.click();
+    return () => URL.revokeObjectURL(done.url);
   }, [done]);
   useEffect(() => () => abort.current?.abort(), []);
 
@@ -124,11 +128,7 @@ function RecordDialog({ models, store, link, onClose }: RecordButtonProps & { on
     }
   };
 
-  const offer = (d: Done) => {
-    setDone(d);
-    // the browser's download starts at once; the link stays for a second copy
-    requestAnimationFrame(() => download.current?.click());
-  };
+  const offer = (d: Done) => setDone(d);
 
   const toggle = (o: OverlayName) => setOverlays((s) => {
     const n = new Set(s);
