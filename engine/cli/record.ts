@@ -232,7 +232,9 @@ async function recordInBrowser(job: Job, picture: PictureOptions, executablePath
     const page = await browser.newPage();
     const pageErrors: string[] = [];
     page.on('pageerror', (e) => pageErrors.push(e.message));
-    const q = new URLSearchParams({ run: basename(job.runDir), t: '1' });
+    // the page's own view at the start of the run: few segments, so it is drawn and done with
+    // quickly and does not compete with the recorder for the (software) GPU
+    const q = new URLSearchParams({ run: basename(job.runDir), t: '0' });
     if (job.compareDir) q.set('compare', basename(job.compareDir));
     bar.message('record: opening the viewer in headless Chromium…');
     await page.goto(`${server.origin}/?${q}`, { waitUntil: 'commit' });

@@ -2,6 +2,7 @@
 // command as a child process, and Debian's ffprobe/ffmpeg as the outside judge of what was
 // written (codec, size, frame count, decoded pixels).
 import { spawn, spawnSync } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { ROOT } from '../e2e/harness.ts';
 
@@ -101,4 +102,18 @@ export function halvesDiffer(a: Uint8Array, width: number, height: number, x0: n
     if (Math.abs(a[i] - a[j]) + Math.abs(a[i + 1] - a[j + 1]) + Math.abs(a[i + 2] - a[j + 2]) > tol) n++;
   }
   return n / (height * (x1 - x0));
+}
+
+/** The top-level boxes of an MP4 file in order (ISO/IEC 14496-12: each box starts with a 32-bit
+ *  big-endian size and a four-letter type). */
+export function topLevelBoxes(file: string): string[] {
+  const b = readFileSync(file);
+  const out: string[] = [];
+  for (let i = 0; i + 8 <= b.length;) {
+    const size = b.readUInt32BE(i);
+    out.push(b.toString('latin1', i + 4, i + 8));
+    if (size < 8) break;
+    i += size;
+  }
+  return out;
 }

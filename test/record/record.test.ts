@@ -7,7 +7,7 @@ import { existsSync, mkdirSync, readdirSync } from 'node:fs';
 import { spawn } from 'node:child_process';
 import { join } from 'node:path';
 import { ROOT, engineRun, scratchDir } from '../e2e/harness.ts';
-import { buildRecordViewer, record, probeVideo, decodeFrames, decodePng, differingShare, drawnShare, halvesDiffer } from './harness.ts';
+import { buildRecordViewer, record, probeVideo, decodeFrames, decodePng, differingShare, drawnShare, halvesDiffer, topLevelBoxes } from './harness.ts';
 
 let viewer: string;
 let runs: string;
@@ -36,6 +36,9 @@ describe('axonloom record in headless Chromium', () => {
     expect(p).toMatchObject({ codec: 'h264', width: 320, height: 240, frames: 20 });
     expect(p.format).toContain('mp4');
     expect(p.durationS).toBeCloseTo(2, 2);
+    // the index (moov) before the media (mdat): "fast start", playable before it is all read
+    // (the layout slide software and web players prefer; common practice, no source)
+    expect(topLevelBoxes(file)).toEqual(['ftyp', 'moov', 'mdat']);
     const frames = decodeFrames(file, 320, 240);
     expect(frames.length).toBe(20);
     // the run grows between the first frame (start) and the last (end)

@@ -65,34 +65,46 @@ export function drawOverlays(ctx: CanvasRenderingContext2D, c: OverlayContent): 
   ctx.save();
   ctx.textBaseline = 'alphabetic';
 
-  if (show.has('labels')) for (const v of c.views) drawLabels(ctx, v.frame.labels, f(OVERLAY_PX.label));
-
+  // plates first; the labels then go where no plate is (and where no other label is)
+  const taken: Box[] = [];
   // top row: the title (left, or centred over side-by-side views) and, for one view, the time
   let below = m;
   if (show.has('title') && c.title.trim()) {
     const timeW = !compare && show.has('time') ? measure(ctx, timeText(c.views[0].frame.timeH), font(700, f(OVERLAY_PX.time))) + 3 * m : 0;
     const box = plate(ctx, c.title.trim(), f(OVERLAY_PX.title), 600, compare ? W / 2 : m, m, compare ? 'center' : 'left', W - 2 * m - timeW, TEXT);
+    taken.push(box);
     below = m + box.h + Math.round(m / 2);
   }
   for (const v of c.views) {
     const r = v.frame.rect;
     if (show.has('time')) {
       const y = compare ? below : m;
-      plate(ctx, timeText(v.frame.timeH), f(OVERLAY_PX.time), 700, r.x + r.w - m, y, 'right', r.w - 2 * m, TEXT);
+      taken.push(plate(ctx, timeText(v.frame.timeH), f(OVERLAY_PX.time), 700, r.x + r.w - m, y, 'right', r.w - 2 * m, TEXT));
     }
     if (show.has('variant')) {
       // shares its row with the time when views are side by side, or when there is no title
       const sameRow = show.has('time') && (compare || below === m);
       const tw = sameRow ? measure(ctx, timeText(v.frame.timeH), font(700, f(OVERLAY_PX.time))) + 3 * m : 0;
-      plate(ctx, v.variant, f(OVERLAY_PX.variant), 600, r.x + m, below, 'left', r.w - 2 * m - tw, SUBTEXT);
+      taken.push(plate(ctx, v.variant, f(OVERLAY_PX.variant), 600, r.x + m, below, 'left', r.w - 2 * m - tw, SUBTEXT));
     }
-    if (show.has('scale')) drawScaleBar(ctx, v.frame, f(OVERLAY_PX.scale), k, m);
+    if (show.has('scale')) {
+      const bar = drawScaleBar(ctx, v.frame, f(OVERLAY_PX.scale), k, m);
+      if (bar) taken.push(bar);
+    }
   }
-  if (show.has('legend') && c.legend) drawLegend(ctx, c.legend, W, H, f(OVERLAY_PX.legend), k, m);
+  if (show.has('legend') && c.legend) taken.push(drawLegend(ctx, c.legend, W, H, f(OVERLAY_PX.legend), k, m));
+  if (show.has('labels')) for (const v of c.views) drawLabels(ctx, v.frame, f(OVERLAY_PX.label), taken);
   ctx.restore();
 }
 
 // --- private helpers ---
+
+interface Box {
+  x: number;
+  y: number;
+  w: number;
+  h: number;
+}
 
 const TEXT = '#ffffff';
 const SUBTEXT = '#e3eaf1';
@@ -116,8 +128,8 @@ function measure(ctx: CanvasRenderingContext2D, text: string, f: string): number
 }
 
 /** Text on a dark plate, its top edge at y, anchored at x; shrunk (to 80 %) and then cut with
- *  an ellipsis to fit maxW. Returns the plate's size. */
-function plate(ctx: CanvasRenderingContext2D, text: string, px: number, weight: number, x: number, y: number, align: 'left' | 'center' | 'right', maxW: number, colour: string): { w: number; h: number } {
+ *  an ellipsis to fit maxW. Returns where the plate is. */
+function plate(ctx: CanvasRenderingContext2D, text: string, px: number, weight: number, x: number, y: number, align: 'left' | 'center' | 'right', maxW: number, colour: string): Box {
   const padX = Math.round(px * 0.32), padY = Math.round(px * 0.16);
   let size = px;
   let shown = text;
@@ -132,29 +144,48 @@ function plate(ctx: CanvasRenderingContext2D, text: string, px: number, weight: 
   ctx.fillStyle = colour;
   ctx.textAlign = 'left';
   ctx.fillText(shown, left + padX, y + padY + size * 0.93);
-  return { w, h };
+  return { x: left, y, w, h };
 }
 
-function drawLabels(ctx: CanvasRenderingContext2D, labels: PlacedLabel[], px: number): void {
+/** Region and axis labels at their projected points, moved in so that each stays whole inside
+ *  its own view (a label at a view's edge would otherwise be cut, or run into the next view).
+ *  Region names first, then axis names; a label that would cover a plate or an earlier label
+ *  is left out, since two texts over each other read as neither. */
+function drawLabels(ctx: CanvasRenderingContext2D, v: ViewFrame, px: number, taken: Box[]): void {
+  const r = v.rect, pad = Math.max(2, Math.round(px * 0.2));
+  ctx.save();
+  ctx.beginPath();
+  ctx.rect(r.x, r.y, r.w, r.h);
+  ctx.clip();
   ctx.textAlign = 'center';
   ctx.lineJoin = 'round';
+  const labels = [...v.labels].sort((a, b) => Number(a.role === 'axis') - Number(b.role === 'axis'));
+  const placed: Box[] = [];
   for (const l of labels) {
     const weight = l.role === 'region' || l.role === 'axis' ? 500 : 700;
-    ctx.font = font(weight, l.role === 'axis' ? Math.max(MIN_TEXT_PX, Math.round(px * 0.85)) : px);
-    ctx.lineWidth = Math.max(2, px * 0.2);
+    const size = l.role === 'axis' ? Math.max(MIN_TEXT_PX, Math.round(px * 0.85)) : px;
+    ctx.font = font(weight, size);
+    const half = ctx.measureText(l.text).width / 2 + pad;
+    const x = Math.min(Math.max(l.x, r.x + half), r.x + r.w - half);
+    const y = Math.min(Math.max(l.y, r.y + size * 0.6 + pad), r.y + r.h - size * 0.6 - pad) + size * 0.35;
+    const box = { x: x - half, y: y - size * 0.95, w: 2 * half, h: size * 1.25 };
+    if (taken.some((t) => overlap(t, box)) || placed.some((t) => overlap(t, box))) continue;
+    placed.push(box);
+    ctx.lineWidth = Math.max(2, size * 0.2);
     ctx.strokeStyle = 'rgba(0, 0, 0, 0.92)';
-    ctx.strokeText(l.text, l.x, l.y + px * 0.35);
+    ctx.strokeText(l.text, x, y);
     ctx.fillStyle = LABEL_COLOUR[l.role];
-    ctx.fillText(l.text, l.x, l.y + px * 0.35);
+    ctx.fillText(l.text, x, y);
   }
+  ctx.restore();
 }
 
 /** A bar of a round length in µm (1, 2 or 5 × 10^k), true everywhere in an orthographic view,
  *  bottom left of its view, with its length written above it. */
-function drawScaleBar(ctx: CanvasRenderingContext2D, v: ViewFrame, px: number, k: number, m: number): void {
+function drawScaleBar(ctx: CanvasRenderingContext2D, v: ViewFrame, px: number, k: number, m: number): Box | null {
   const r = v.rect;
   const bar = scaleBar(v.pxPerUm, Math.min(360 * k, r.w * 0.3));
-  if (!bar) return;
+  if (!bar) return null;
   const thick = Math.max(3, Math.round(OVERLAY_PX.bar * k));
   const pad = Math.round(px * 0.3);
   ctx.font = font(700, px);
@@ -171,11 +202,12 @@ function drawScaleBar(ctx: CanvasRenderingContext2D, v: ViewFrame, px: number, k
   ctx.fillRect(x + pad - 1, by - 1, bar.px + 2, thick + 2);
   ctx.fillStyle = TEXT;
   ctx.fillRect(x + pad, by, bar.px, thick);
+  return { x, y, w, h };
 }
 
 /** The source-sheet colour map with its axes: colour = where on the source sheet an axon
  *  started (u to the right, v upward, as in the viewer's key). */
-function drawLegend(ctx: CanvasRenderingContext2D, l: LegendInfo, W: number, H: number, px: number, k: number, m: number): void {
+function drawLegend(ctx: CanvasRenderingContext2D, l: LegendInfo, W: number, H: number, px: number, k: number, m: number): Box {
   const sw = Math.max(12, Math.round(OVERLAY_PX.legendSwatch * k));
   const pad = Math.round(px * 0.45), gap = Math.round(px * 0.5);
   const head = `Colour = start on ${l.sheet}`;
@@ -203,6 +235,11 @@ function drawLegend(ctx: CanvasRenderingContext2D, l: LegendInfo, W: number, H: 
   ctx.fillStyle = SUBTEXT;
   ctx.fillText(vText, x + pad + sw + gap, sy + px * 0.9);
   ctx.fillText(uText, x + pad + sw + gap, sy + sw);
+  return { x, y, w, h };
+}
+
+function overlap(a: Box, b: Box): boolean {
+  return a.x < b.x + b.w && b.x < a.x + a.w && a.y < b.y + b.h && b.y < a.y + a.h;
 }
 
 let swatch: HTMLCanvasElement | null = null;

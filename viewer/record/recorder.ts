@@ -192,6 +192,7 @@ export function runSpan(models: RunModel[]): [number, number] {
 
 // --- private helpers ---
 
+const DIVIDER = '#4a5563';
 /** Frames waiting in the encoder before drawing the next one waits. */
 const MAX_QUEUE = 4;
 /** Size of the writes handed to a sink. */
@@ -244,6 +245,12 @@ class FrameComposer {
 
   compose(picture: HTMLCanvasElement, views: ReturnType<RecordStage['render']>): void {
     this.ctx.drawImage(picture, 0, 0);
+    // a visible divider between side-by-side views (drawn here, in sRGB as given)
+    this.ctx.fillStyle = DIVIDER;
+    for (let i = 1; i < views.length; i++) {
+      const a = views[i - 1].rect, b = views[i].rect;
+      this.ctx.fillRect(a.x + a.w, 0, b.x - a.x - a.w, this.opts.height);
+    }
     drawOverlays(this.ctx, {
       width: this.opts.width, height: this.opts.height, show: this.show, title: this.opts.title,
       views: views.map((frame, i) => ({ frame, variant: this.variants[i] })), legend: this.legend,
