@@ -41,7 +41,7 @@ try {
   let bytes = 0;
   await page.exposeFunction('__benchWrite', (_pos: number, b64: string) => void (bytes += Math.floor((b64.length * 3) / 4)));
   const record = async (camera: VideoOptions['camera'], frames: number, redraw = false): Promise<RecordStats> => {
-    const opts: VideoOptions = { width: 1280, height: 720, fps: frames, seconds: 1, container: 'mp4', camera, overlays: ['title', 'time', 'scale', 'legend', 'variant', 'labels'], title: 'benchmark', redraw };
+    const opts: VideoOptions = { width: 1280, height: 720, fps: 30, seconds: frames / 30, container: 'mp4', camera, overlays: ['title', 'time', 'scale', 'legend', 'variant', 'labels'], title: 'benchmark', redraw };
     const r = await page.evaluate(`window.__axonloomRecorder.record(${JSON.stringify(opts)}, (p, d) => window.__benchWrite(p, d))`) as PageOutcome<RecordStats>;
     if (!r.ok) throw new Error(r.message);
     return r.value;
@@ -53,7 +53,7 @@ try {
   const orbit = await record({ kind: 'orbit', preset: 'oblique', turns: 1 }, REDRAW_FRAMES);
   log(`orbit: ${orbit.framesPerSecond.toFixed(2)} frames/s (drawing ${(orbit.drawMs / orbit.frames).toFixed(0)} ms/frame, encoding ${(orbit.encodeMs / orbit.frames).toFixed(0)} ms/frame)`);
   const summary = (s: RecordStats) => ({
-    frames: s.frames, framesPerSecond: +s.framesPerSecond.toFixed(3), setupMs: Math.round(s.setupMs),
+    frames: s.frames, framesPerSecond: +s.framesPerSecond.toFixed(3), totalMs: Math.round(s.ms), setupMs: Math.round(s.setupMs),
     drawMsPerFrame: Math.round(s.drawMs / s.frames), composeMsPerFrame: Math.round(s.composeMs / s.frames), encodeMsPerFrame: Math.round(s.encodeMs / s.frames), bytes: s.bytes, codec: s.codec,
   });
   const result = {
