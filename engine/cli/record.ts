@@ -243,7 +243,8 @@ async function recordInBrowser(job: Job, picture: PictureOptions, executablePath
       const text = (await page.locator('[data-testid="error"]').innerText().catch(() => '')).split('\n').filter(Boolean).slice(0, 2).join(': ');
       throw new Error(`the viewer could not open the run: ${text || pageErrors[0] || 'unknown error'}`);
     }
-    await page.waitForFunction(() => window.__axonloomRecorder?.version === 1, undefined, { timeout: 30_000 });
+    const hasRecorder = await page.waitForFunction(() => window.__axonloomRecorder?.version === 1, undefined, { timeout: 15_000 }).then(() => true, () => false);
+    if (!hasRecorder) throw new Error(`the viewer build in ${viewerDir} has no recorder (built before 'record' existed?); rebuild it with 'npx vite build'`);
 
     let outcome: PageOutcome<{ frames?: number; bytes: number }>;
     if (job.kind === 'png') {
