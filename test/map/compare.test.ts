@@ -3,7 +3,7 @@
 // difference of the means), the plot is written, and usage errors exit 2 with one line
 // (command-line convention, common practice, no source).
 import { describe, it, expect, beforeAll, afterAll } from 'vitest';
-import { readFileSync, existsSync } from 'node:fs';
+import { readFileSync, existsSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { cli, ROOT, tempDir } from '../helpers.ts';
 import { parseCsvObjects } from '../../engine/io/csv.ts';
@@ -68,12 +68,16 @@ describe('axonloom compare', () => {
     for (const s of ['>normal<', '>knockin<', 'source u (outer→inner)', 'target u (head→tail)', 'knock-in axons', 'expected map']) expect(svg).toContain(s);
   });
   it('usage errors exit 2 with one line', () => {
+    const noVariants = join(tmp.dir, 'no-variants.json');
+    const plain = JSON.parse(readFileSync(MAP, 'utf8'));
+    delete plain.variants;
+    writeFileSync(noVariants, JSON.stringify(plain));
     for (const args of [
       ['compare', MAP, '--variants', 'normal,knockon'],
       ['compare', MAP, '--seeds', '0'],
       ['compare'],
       ['compare', MAP, '--variants', 'normal,,knockin'],
-      ['compare', join(ROOT, 'scenes/demo.json')], // no variants
+      ['compare', noVariants], // no variants
     ]) {
       const r = cli(args);
       expect(r.code, args.join(' ')).toBe(2);
