@@ -63,6 +63,7 @@ export function GrowthView(p: GrowthViewProps) {
         dpr={1}
         flat
         linear
+        legacy
         gl={{ preserveDrawingBuffer: true, antialias: false, alpha: false, powerPreference: 'low-power' }}
         camera={{ near: 1, far: 1e6, position: [0, 0, 1000], zoom: 1 }}
         onCreated={({ gl }) => {
