@@ -35,7 +35,9 @@ describe('OKLab conversion', () => {
   it('round-trips every sRGB colour', () => {
     fc.assert(fc.property(fc.double({ min: 0, max: 1, noNaN: true }), fc.double({ min: 0, max: 1, noNaN: true }), fc.double({ min: 0, max: 1, noNaN: true }), (r, g, b) => {
       const back = oklabToSrgb(...srgbToOklab(r, g, b));
-      expect(dist(back, [r, g, b])).toBeLessThan(1e-6);
+      // 1e-5, not tighter: IEC 61966-2-1's two pieces do not quite meet at 0.04045 (linear
+      // 0.0031308 vs power 0.0031306), so values in a sliver just above the break miss by ~2e-6
+      expect(dist(back, [r, g, b])).toBeLessThan(1e-5);
     }));
   });
 

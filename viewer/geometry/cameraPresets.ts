@@ -6,7 +6,7 @@
 export const CAMERA_PRESETS = ['oblique', 'top', 'side', 'end-on'] as const;
 export type CameraPreset = (typeof CAMERA_PRESETS)[number];
 
-type V3 = [number, number, number];
+import { normalize, cross, dot, type V3 } from './vec3.ts';
 
 export interface CameraPose {
   position: V3;
@@ -48,13 +48,3 @@ export function presetPose(name: CameraPreset, size: V3, viewport: { width: numb
   return { position: [target[0] + d[0] * dist, target[1] + d[1] * dist, target[2] + d[2] * dist], target, up: WORLD_UP, zoom };
 }
 
-function normalize(v: V3): V3 {
-  const l = Math.hypot(v[0], v[1], v[2]);
-  return [v[0] / l, v[1] / l, v[2] / l];
-}
-function cross(a: V3, b: V3): V3 {
-  return [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]];
-}
-function dot(a: V3, b: V3): number {
-  return a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
-}

@@ -9,7 +9,7 @@
 // Written as text for the command line: "oblique", "orbit", "orbit:top", "fly:top:side".
 import { CAMERA_PRESETS, isCameraPreset, presetPose, type CameraPose, type CameraPreset } from '../geometry/cameraPresets.ts';
 
-type V3 = [number, number, number];
+import { normalize, cross, dot, type V3 } from '../geometry/vec3.ts';
 
 export type CameraPath =
   | { kind: 'still'; preset: CameraPreset }
@@ -134,16 +134,6 @@ function slerp(a: V3, b: V3, u: number): V3 {
   return normalize([a[0] * sa + b[0] * sb, a[1] * sa + b[1] * sb, a[2] * sa + b[2] * sb]);
 }
 
-function normalize(v: V3): V3 {
-  const l = Math.hypot(v[0], v[1], v[2]);
-  return [v[0] / l, v[1] / l, v[2] / l];
-}
-function cross(a: V3, b: V3): V3 {
-  return [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]];
-}
-function dot(a: V3, b: V3): number {
-  return a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
-}
 function clamp01(x: number): number {
   return x < 0 ? 0 : x > 1 ? 1 : x;
 }
