@@ -10,6 +10,7 @@ export default defineConfig({
   test: {
     root: '.',
     include: ['test/**/*.test.ts'],
+    setupFiles: ['test/setup.ts'],
     testTimeout: 60_000,
     hookTimeout: 180_000,
     pool: 'forks',
