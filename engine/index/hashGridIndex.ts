@@ -30,6 +30,7 @@ import {
   fillNearest,
   pointSegmentDistanceSq,
 } from './shaftIndex.ts';
+import { scanNearest, scanWithin } from './bruteForceIndex.ts';
 
 const DEFAULT_CELL_SIZE = 20; // µm, upper end of the fasciculation radius
 /** keys per block; a block is [next, count, key × KEYS] = 8 ints = 32 bytes */
@@ -98,7 +99,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     const ix0 = Math.floor((x - e) * inv), ix1 = Math.floor((x + e) * inv);
     const iy0 = Math.floor((y - e) * inv), iy1 = Math.floor((y + e) * inv);
     const iz0 = Math.floor((z - e) * inv), iz1 = Math.floor((z + e) * inv);
-    if (this.tooManyCells(ix0, ix1, iy0, iy1, iz0, iz1)) return this.nearestByScan(x, y, z, r, accept, out);
+    if (this.tooManyCells(ix0, ix1, iy0, iy1, iz0, iz1)) return scanNearest(this.store, x, y, z, r, accept, out);
     const stamp = this.stamp, st = this.nextStamp();
     const blocks = this.blocks;
     const p = store.xyz, stride = store.stride;
@@ -146,7 +147,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     const ix0 = Math.floor((x - e) * inv), ix1 = Math.floor((x + e) * inv);
     const iy0 = Math.floor((y - e) * inv), iy1 = Math.floor((y + e) * inv);
     const iz0 = Math.floor((z - e) * inv), iz1 = Math.floor((z + e) * inv);
-    if (this.tooManyCells(ix0, ix1, iy0, iy1, iz0, iz1)) return this.withinByScan(x, y, z, r, visit);
+    if (this.tooManyCells(ix0, ix1, iy0, iy1, iz0, iz1)) return scanWithin(this.store, x, y, z, r, visit);
     const stamp = this.stamp, st = this.nextStamp();
     const blocks = this.blocks;
     const p = store.xyz, stride = store.stride;
@@ -272,42 +273,6 @@ export class HashGridShaftIndex implements ShaftIndex {
       this.stampValue = 0;
     }
     return ++this.stampValue;
-  }
-
-  private nearestByScan(
-    x: number, y: number, z: number, r: number,
-    accept: (axon: number) => boolean, out: NearestSegment,
-  ): boolean {
-    const store = this.store, p = store.xyz, r2 = r * r;
-    let best2 = Infinity, bestA = -1, bestS = -1;
-    for (let a = 0; a < store.axonCount; a++) {
-      const n = store.pointCount[a];
-      if (n < 2 || !accept(a)) continue;
-      for (let s = 0, o = store.offset(a, 0); s < n - 1; s++, o += 3) {
-        const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
-        if (d2 <= r2 && d2 < best2) {
-          best2 = d2;
-          bestA = a;
-          bestS = s;
-        }
-      }
-    }
-    if (bestA >= 0) fillNearest(out, store, bestA, bestS, x, y, z, best2);
-    return out.found;
-  }
-
-  private withinByScan(
-    x: number, y: number, z: number, r: number,
-    visit: (axon: number, segment: number, distance: number) => void,
-  ): void {
-    const store = this.store, p = store.xyz, r2 = r * r;
-    for (let a = 0; a < store.axonCount; a++) {
-      const n = store.pointCount[a];
-      for (let s = 0, o = store.offset(a, 0); s < n - 1; s++, o += 3) {
-        const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
-        if (d2 <= r2) visit(a, s, Math.sqrt(d2));
-      }
-    }
   }
 }
 
