@@ -12,11 +12,6 @@ const commands: Record<string, () => Promise<Command>> = {
   record: async () => (await import('./record.ts')).command,
 };
 
-/** Later commands register here; kept as a list so `axonloom --help` shows them in order. */
-export function registerCommand(name: string, load: () => Promise<Command>): void {
-  commands[name] = load;
-}
-
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
   try {

@@ -6,21 +6,6 @@ import { displaySpec, sampleOnVolume } from './field.ts';
 import { solvedField } from './solvedField.ts';
 import { addPointSource } from './gridSolver.ts';
 
-/** Steady state of ∂c/∂t = D∇²c − kc + Qδ(x − x₀) in an infinite medium:
- *    c(r) = Q / (4πDr) · exp(−r/λ),  λ = √(D/k)
- *  (Crank, The Mathematics of Diffusion, 2nd ed. 1975; Berg, Random Walks in Biology, 1983).
- *  Inside the source radius a the value is held at c(a). */
-export function pointConcentration(Q: number, D: number, k: number, r: number, a: number): number {
-  const rr = r < a ? a : r;
-  return (Q / (4 * Math.PI * D * rr)) * Math.exp(-rr * Math.sqrt(k / D));
-}
-
-/** dc/dr of the same formula: −c·(1/r + 1/λ) outside a, 0 inside. */
-export function pointRadialSlope(Q: number, D: number, k: number, r: number, a: number): number {
-  if (r < a) return 0;
-  return -pointConcentration(Q, D, k, r, a) * (1 / r + Math.sqrt(k / D));
-}
-
 export function buildPointField(cue: PointCue, ctx: BuildContext): CueField {
   if (cue.solve === 'grid') {
     const source = addPointSource(ctx.grid, cue.position, cue.rate * cue.scale);
@@ -30,7 +15,10 @@ export function buildPointField(cue: PointCue, ctx: BuildContext): CueField {
   return new AnalyticPointField(cue, ctx);
 }
 
-/** Sum of point-source fields (the equation is linear, so sources superpose). */
+/** Steady state of ∂c/∂t = D∇²c − kc + Qδ(x − x₀) in an infinite medium:
+ *    c(r) = Q / (4πDr) · exp(−r/λ),  λ = √(D/k),   ∇c = −c·(1/r + 1/λ)·r̂
+ *  (Crank, The Mathematics of Diffusion, 2nd ed. 1975; Berg, Random Walks in Biology, 1983),
+ *  held at c(a) inside the source radius a. The equation is linear, so sources superpose. */
 class AnalyticPointField implements CueField {
   readonly kind = 'point' as const;
   readonly sensing = 'diffusible' as const;
@@ -64,7 +52,6 @@ class AnalyticPointField implements CueField {
         c += (amp / a) * Math.exp(-a * il); // held at c(a), flat inside
         continue;
       }
-      // same formula as pointConcentration, inlined: this is the hottest call in the engine
       const ci = (amp / r) * Math.exp(-r * il);
       const s = (-ci * (1 / r + il)) / r; // (dc/dr)/r; times (dx, dy, dz) gives ∇c
       c += ci;

@@ -10,11 +10,6 @@ import { displaySpec, sampleOnVolume } from './field.ts';
 import { SHEET_DISPLAY_NODES } from './expressed.ts';
 import type { Box, Sheet } from '../geometry/regions.ts';
 
-/** c_n = c₀ αⁿ */
-export function relayLevel(first: number, alpha: number, n: number): number {
-  return first * Math.pow(alpha, n);
-}
-
 export function buildRelayField(cue: RelayCue, ctx: BuildContext): CueField {
   return new RelayField(cue, ctx);
 }

@@ -22,6 +22,16 @@ export const STATUS_CODE: Record<AxonStatus, number> = Object.fromEntries(
   AXON_STATUS.map((s, i) => [s, i]),
 ) as Record<AxonStatus, number>;
 
+/** How many of axons [from, to) ended with each status (run.json statusCounts; metrics.growth per population). */
+export function countStatuses(status: Uint8Array, from = 0, to = status.length): Partial<Record<AxonStatus, number>> {
+  const counts: Partial<Record<AxonStatus, number>> = {};
+  for (let i = from; i < to; i++) {
+    const s = AXON_STATUS[status[i]];
+    counts[s] = (counts[s] ?? 0) + 1;
+  }
+  return counts;
+}
+
 /** A display grid written to fields/<name>.npy.
  *  space "volume": array shape [nz, ny, nx]; node (i, j, k) sits at origin + (i, j, k)·spacing µm.
  *  space "sheet": array shape [nv, nu] over a sheet region's own (u, v) ∈ [0, 1]²;

@@ -9,7 +9,7 @@ import { NpyStreamWriter } from './npyFileWriter.ts';
 import { encodeNpy } from './npy.ts';
 import { toCsv, formatFloat32, type CsvCell } from './csv.ts';
 import { axonsToSwc, type AxonPath } from './swc.ts';
-import { RUN_FILES, RUN_FORMAT_VERSION, AXON_STATUS, type RunManifest, type FieldGridInfo, type AxonStatus } from './runFormat.ts';
+import { RUN_FILES, RUN_FORMAT_VERSION, AXON_STATUS, countStatuses, type RunManifest, type FieldGridInfo } from './runFormat.ts';
 import { ENGINE_VERSION } from '../version.ts';
 import { BorderDifference } from '../fields/border.ts';
 
@@ -62,11 +62,7 @@ export class RunRecorder {
       this.dir.writeText(RUN_FILES.axons, this.axonsCsv(extras.axonColumns ?? []));
       if (this.swcFrames) this.dir.writeText(RUN_FILES.swc, this.swc());
 
-      const statusCounts: Partial<Record<AxonStatus, number>> = {};
-      for (let i = 0; i < cones.count; i++) {
-        const s = AXON_STATUS[cones.status[i]];
-        statusCounts[s] = (statusCounts[s] ?? 0) + 1;
-      }
+      const statusCounts = countStatuses(cones.status);
       const manifest: RunManifest = {
         format: 'axonloom-run',
         formatVersion: RUN_FORMAT_VERSION,

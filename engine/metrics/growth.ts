@@ -1,13 +1,12 @@
-// Summary of how growth went, for run.json's metrics.growth: what share of axons ended how,
-// and how far they grew. Per population and overall.
+// How growth went, for run.json's metrics.growth: per population (and overall) how many axons
+// ended with each status, and how far they grew. Whether axons reached their target, and where
+// else they ended, is pathfinding's concept (metrics/pathfinding.ts), not repeated here.
 import type { World } from '../sim/simulate.ts';
-import { AXON_STATUS } from '../io/runFormat.ts';
+import { countStatuses, type AxonStatus } from '../io/runFormat.ts';
 
 export interface GrowthSummary {
   axons: number;
-  reachedFraction: number;
-  stalledFraction: number;
-  exitedFraction: number;
+  statusCounts: Partial<Record<AxonStatus, number>>;
   meanPathLengthUm: number;
   meanSteps: number;
 }
@@ -21,22 +20,10 @@ export function growthMetrics(world: World): { overall: GrowthSummary; populatio
 function summarise(world: World, from: number, to: number): GrowthSummary {
   const { cones } = world;
   const n = to - from;
-  let reached = 0, stalled = 0, exited = 0, path = 0, steps = 0;
+  let path = 0, steps = 0;
   for (let i = from; i < to; i++) {
-    const s = AXON_STATUS[cones.status[i]];
-    if (s === 'reached' || s === 'terminated') reached++;
-    else if (s === 'stalled') stalled++;
-    else if (s === 'exited') exited++;
     path += cones.pathLength[i];
     steps += cones.steps[i];
   }
-  const f = (k: number) => (n ? k / n : 0);
-  return {
-    axons: n,
-    reachedFraction: f(reached),
-    stalledFraction: f(stalled),
-    exitedFraction: f(exited),
-    meanPathLengthUm: n ? path / n : 0,
-    meanSteps: n ? steps / n : 0,
-  };
+  return { axons: n, statusCounts: countStatuses(cones.status, from, to), meanPathLengthUm: n ? path / n : 0, meanSteps: n ? steps / n : 0 };
 }

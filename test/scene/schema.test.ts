@@ -1,3 +1,5 @@
+// Internal consistency of the scene format (project invariants, no outside source): the checked-in
+// JSON Schema is generated from the zod definitions, the shipped scenes are valid, versions agree.
 import { describe, it, expect } from 'vitest';
 import { readFileSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
