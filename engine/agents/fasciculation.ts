@@ -153,7 +153,7 @@ export function shaftDirection(shafts: ShaftStore, a: number, s: number, k: numb
 export class FasciculationRule implements GrowthRule {
   readonly name = 'fasciculation';
   readonly kind: ShaftIndexKind;
-  /** shafts by compact id, for the metrics; the index holds the same points */
+  /** shafts by compact id (tangents, metrics): the index's own store, appended through the index */
   readonly shafts: ShaftStore;
   readonly index: ShaftIndex;
   /** cone i → shaft id, −1 for axons of populations without adhesion */
@@ -239,8 +239,8 @@ export class FasciculationRule implements GrowthRule {
     // A point per step plus the seed point; the store doubles if an axon outgrows it.
     const maxPoints = Math.min(world.steps + 1, 4096);
     const cellSize = Math.max(...adhesive.map((p) => p.spec.adhesion!.radius));
-    this.shafts = new ShaftStore(Math.max(1, n), maxPoints);
     this.index = createShaftIndex(kind, { axons: Math.max(1, n), maxPointsPerAxon: maxPoints, cellSize });
+    this.shafts = this.index.shafts;
     this.attachedSteps = new Uint32Array(n);
     this.releasedSteps = new Uint32Array(n);
     this.pending = new Int32Array(n);
@@ -367,14 +367,8 @@ export class FasciculationRule implements GrowthRule {
     this.pendingCount = 0;
   }
 
-  /** Appends to store and index, skipping a repeat of the last point (a cone a wall held back). */
+  /** Appends to the index, skipping a repeat of the last point (a cone a wall held back). */
   private appendPoint(id: number, x: number, y: number, z: number): void {
-    const s = this.shafts, n = s.pointCount[id];
-    if (n > 0) {
-      const o = s.offset(id, n - 1);
-      if (s.xyz[o] === x && s.xyz[o + 1] === y && s.xyz[o + 2] === z) return;
-    }
-    s.append(id, x, y, z);
-    this.index.append(id, x, y, z);
+    if (!this.shafts.isLastPoint(id, x, y, z)) this.index.append(id, x, y, z);
   }
 }

@@ -18,6 +18,10 @@ export class BruteForceShaftIndex implements ShaftIndex {
     this.store = new ShaftStore(opts.axons, opts.maxPointsPerAxon);
   }
 
+  get shafts(): ShaftStore {
+    return this.store;
+  }
+
   get segmentCount(): number {
     return this.store.segmentCount;
   }

@@ -1,24 +1,34 @@
 // Shaft index on a uniform 3D hash grid, all in typed arrays.
 //
 // Space is cut into cubes of edge `cellSize`. A cell table (open addressing, linear probing)
-// maps each occupied cell's 32-bit hash to the head of a singly linked list (head / next in
-// Int32Arrays) of small blocks of segment keys a·stride + s. A segment is entered in every cell
-// its bounding box touches, so a query visits only the cells its own box touches, and a segment
-// reached through several cells is skipped after the first by a per-query stamp array.
+// maps each occupied cell's 32-bit hash to the head of a singly linked list of blocks of
+// entries. A segment is entered in every cell its bounding box touches, so a query visits only
+// the cells its own box touches. An entry is the segment's key a·stride + s and a copy of its
+// two end points, the same float32 values the shaft store holds.
 //
-// Why blocks of keys rather than one list node per key: a cell's keys then sit together in
-// memory instead of being spread over the whole entry array in growth order (all axons append
-// one segment per step, so one cell's segments arrive far apart in time). Queries are bound by
-// memory latency, not arithmetic; one cache line per block instead of one per key was about
-// 1.5–2× faster per query at 1,000–10,000 axons in a one-off comparison on the scene of
-// test/bench/index.bench.ts.
+// Why copy the end points into the entries: these queries are bound by memory latency, not
+// arithmetic. With keys alone every candidate sent the query to a random place in the shaft
+// store, one cache miss per candidate; with the points beside the key a cell is read in order
+// and the store is not touched until the answer is filled in. Distances come out bit for bit
+// as the store's points give them, so answers stay identical to brute force.
+// Why blocks that double in size along a cell's list (4, 8, 16, … up to MAX_KEYS entries): a
+// cell's entries then sit in a few long runs of memory instead of many small blocks spread
+// over the pool in growth order (all axons append one segment per step, so one cell's segments
+// arrive far apart in time), at most half a block wasted per cell.
 // Why store the cell's hash in the table: an empty cell then costs one probe and never a walk
 // through some other cell's list. Two cells with the same 32-bit hash would share a list; that
 // costs distance tests, never a wrong answer, since every candidate is measured exactly.
 //
-// Appending a segment is O(cells it touches); the block pool doubles when full and the cell
-// table doubles (rehashing cells only, blocks stay put) above 70 % load, so appends are
-// amortised O(1). The grid needs no bounds.
+// nearestSegment searches the cell holding the query point first and skips any other cell
+// whose cube lies farther than the best distance so far: in a crowded bundle the nearest
+// segment is usually far nearer than r, so most cells of the query box are never read. It needs
+// no de-duplication (a segment met again through another cell measures the same distance,
+// which is no improvement). segmentsWithin marks segments met with a per-query stamp so each
+// is reported once. Measured on test/bench/fasciculation.bench.ts and index.bench.ts: README.
+//
+// Appending a segment is O(cells it touches); the pool doubles when full and the cell table
+// doubles (rehashing cells only, blocks stay put) above 70 % load, so appends are amortised
+// O(1). The grid needs no bounds.
 
 import {
   BOX_SLACK,
@@ -33,9 +43,12 @@ import {
 import { scanNearest, scanWithin } from './bruteForceIndex.ts';
 
 const DEFAULT_CELL_SIZE = 20; // µm, upper end of the fasciculation radius
-/** keys per block; a block is [next, count, key × KEYS] = 8 ints = 32 bytes */
-const KEYS = 6;
-const BLOCK = KEYS + 2;
+/** A block is [next block or −1, entry count, capacity, entry × capacity] in one Int32Array
+ *  seen also as Float32Array; an entry is [key, ax, ay, az, bx, by, bz]. */
+const HEAD = 3;
+const ENTRY = 7;
+const FIRST_KEYS = 4;
+const MAX_KEYS = 64;
 
 export class HashGridShaftIndex implements ShaftIndex {
   readonly cellSize: number;
@@ -45,15 +58,20 @@ export class HashGridShaftIndex implements ShaftIndex {
   private cells: Int32Array;
   private cellMask: number;
   private cellsUsed = 0;
-  /** block pool: block b is blocks[b·BLOCK ..] = [next block or −1, key count, keys…] */
-  private blocks: Int32Array;
-  private blockCount = 0;
-  /** keys entered, over all cells (a segment counts once per cell it touches) */
+  /** block pool, one buffer seen as ints (links, counts, keys) and as floats (end points);
+   *  blocks are laid end to end from word 0 to poolUsed */
+  private pool: Int32Array;
+  private poolF: Float32Array;
+  private poolUsed = 0;
+  /** entries made, over all cells (a segment counts once per cell it touches) */
   private entryCount = 0;
   /** stride the entry keys were written with; the store may double it */
   private keyStride: number;
   private stamp: Int32Array;
   private stampValue = 0;
+  /** running best of the current nearestSegment query (squared distance, entry key or −1) */
+  private best2 = 0;
+  private bestKey = -1;
 
   constructor(opts: ShaftIndexOptions) {
     const cellSize = opts.cellSize ?? DEFAULT_CELL_SIZE;
@@ -62,14 +80,19 @@ export class HashGridShaftIndex implements ShaftIndex {
     this.inv = 1 / cellSize;
     this.store = new ShaftStore(opts.axons, opts.maxPointsPerAxon);
     this.keyStride = this.store.stride;
-    // Sized for the expected segment count: short segments (a growth step is a few µm, a cell
-    // ~ the query radius) touch 1–2 cells, and half-full blocks are common. Both grow by
-    // doubling when the guess is low; occupied cells depend on the volume, not known here.
+    // Sized for the expected segment count, about two entries each (a growth step of a few
+    // µm against a cell ~ the query radius touches 1–3 cells); the pool doubles when the guess
+    // is low. Occupied cells depend on the volume, not known here.
     const expected = Math.max(1024, Math.ceil(opts.axons) * Math.ceil(opts.maxPointsPerAxon));
-    this.blocks = new Int32Array(BLOCK * Math.ceil(expected / 3));
+    this.pool = new Int32Array(2 * ENTRY * expected);
+    this.poolF = new Float32Array(this.pool.buffer);
     this.cells = new Int32Array(2 * 4096).fill(-1);
     this.cellMask = 4096 - 1;
     this.stamp = new Int32Array(this.store.axonCapacity * this.store.stride);
+  }
+
+  get shafts(): ShaftStore {
+    return this.store;
   }
 
   get segmentCount(): number {
@@ -92,48 +115,34 @@ export class HashGridShaftIndex implements ShaftIndex {
     accept: (axon: number) => boolean, out: NearestSegment,
   ): boolean {
     clearNearest(out);
-    const store = this.store;
-    const r2 = r * r;
-    let best2 = Infinity, bestA = -1, bestS = -1;
     const inv = this.inv, e = r + BOX_SLACK;
     const ix0 = Math.floor((x - e) * inv), ix1 = Math.floor((x + e) * inv);
     const iy0 = Math.floor((y - e) * inv), iy1 = Math.floor((y + e) * inv);
     const iz0 = Math.floor((z - e) * inv), iz1 = Math.floor((z + e) * inv);
     if (this.tooManyCells(ix0, ix1, iy0, iy1, iz0, iz1)) return scanNearest(this.store, x, y, z, r, accept, out);
-    const stamp = this.stamp, st = this.nextStamp();
-    const blocks = this.blocks;
-    const p = store.xyz, stride = store.stride;
     const cs = this.cellSize;
-    // Cells whose cube lies farther than the best distance so far (at most r) are skipped
-    // before their list is touched: the query box's corner cells often are.
-    let cull2 = (r + BOX_SLACK) ** 2;
+    this.best2 = r * r;
+    this.bestKey = -1;
+    const hx = Math.floor(x * inv), hy = Math.floor(y * inv), hz = Math.floor(z * inv);
+    this.scanCellNearest(this.cellHead(cellHash(hx, hy, hz)), x, y, z, accept);
     for (let k = iz0; k <= iz1; k++) {
       const dz = gap(z, k * cs, cs);
       for (let j = iy0; j <= iy1; j++) {
         const dyz = gap(y, j * cs, cs) ** 2 + dz * dz;
         for (let i = ix0; i <= ix1; i++) {
-          if (gap(x, i * cs, cs) ** 2 + dyz > cull2) continue;
-          for (let b = this.cellHead(cellHash(i, j, k)); b !== -1; b = blocks[b]) {
-            for (let q = b + 2, end = b + 2 + blocks[b + 1]; q < end; q++) {
-              const key = blocks[q];
-              if (stamp[key] === st) continue;
-              stamp[key] = st;
-              const a = (key / stride) | 0;
-              if (!accept(a)) continue;
-              const o = key * 3;
-              const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
-              if (d2 <= r2 && d2 < best2) {
-                best2 = d2;
-                bestA = a;
-                bestS = key - a * stride;
-                cull2 = (Math.sqrt(d2) + BOX_SLACK) ** 2;
-              }
-            }
-          }
+          // A cell whose cube lies farther than the best distance so far (at most r) holds
+          // nothing nearer; the slack keeps a segment on the cube's face from being culled.
+          const cull = Math.sqrt(this.best2) + BOX_SLACK;
+          if (gap(x, i * cs, cs) ** 2 + dyz > cull * cull || (i === hx && j === hy && k === hz)) continue;
+          this.scanCellNearest(this.cellHead(cellHash(i, j, k)), x, y, z, accept);
         }
       }
     }
-    if (bestA >= 0) fillNearest(out, store, bestA, bestS, x, y, z, best2);
+    const key = this.bestKey;
+    if (key >= 0) {
+      const stride = this.store.stride, a = (key / stride) | 0;
+      fillNearest(out, this.store, a, key - a * stride, x, y, z, this.best2);
+    }
     return out.found;
   }
 
@@ -141,7 +150,6 @@ export class HashGridShaftIndex implements ShaftIndex {
     x: number, y: number, z: number, r: number,
     visit: (axon: number, segment: number, distance: number) => void,
   ): void {
-    const store = this.store;
     const r2 = r * r;
     const inv = this.inv, e = r + BOX_SLACK;
     const ix0 = Math.floor((x - e) * inv), ix1 = Math.floor((x + e) * inv);
@@ -149,8 +157,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     const iz0 = Math.floor((z - e) * inv), iz1 = Math.floor((z + e) * inv);
     if (this.tooManyCells(ix0, ix1, iy0, iy1, iz0, iz1)) return scanWithin(this.store, x, y, z, r, visit);
     const stamp = this.stamp, st = this.nextStamp();
-    const blocks = this.blocks;
-    const p = store.xyz, stride = store.stride;
+    const pool = this.pool, f = this.poolF, stride = this.store.stride;
     const cs = this.cellSize, cull2 = (r + BOX_SLACK) ** 2;
     for (let k = iz0; k <= iz1; k++) {
       const dz = gap(z, k * cs, cs);
@@ -158,17 +165,15 @@ export class HashGridShaftIndex implements ShaftIndex {
         const dyz = gap(y, j * cs, cs) ** 2 + dz * dz;
         for (let i = ix0; i <= ix1; i++) {
           if (gap(x, i * cs, cs) ** 2 + dyz > cull2) continue;
-          for (let b = this.cellHead(cellHash(i, j, k)); b !== -1; b = blocks[b]) {
-            for (let q = b + 2, end = b + 2 + blocks[b + 1]; q < end; q++) {
-              const key = blocks[q];
+          for (let b = this.cellHead(cellHash(i, j, k)); b !== -1; b = pool[b]) {
+            for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
+              const d2 = pointSegmentDistanceSq(x, y, z, f[q + 1], f[q + 2], f[q + 3], f[q + 4], f[q + 5], f[q + 6]);
+              if (d2 > r2) continue;
+              const key = pool[q];
               if (stamp[key] === st) continue;
               stamp[key] = st;
-              const o = key * 3;
-              const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
-              if (d2 <= r2) {
-                const a = (key / stride) | 0;
-                visit(a, key - a * stride, Math.sqrt(d2));
-              }
+              const a = (key / stride) | 0;
+              visit(a, key - a * stride, Math.sqrt(d2));
             }
           }
         }
@@ -177,6 +182,26 @@ export class HashGridShaftIndex implements ShaftIndex {
   }
 
   // -------------------------------------------------------------------------------------------
+
+  /** Scans one cell's blocks for an accepted segment nearer than best2, updating best2 and
+   *  bestKey (the first of equals found, and one exactly at r counts). */
+  private scanCellNearest(b: number, x: number, y: number, z: number, accept: (axon: number) => boolean): void {
+    const pool = this.pool, f = this.poolF, stride = this.store.stride;
+    let best2 = this.best2, bestKey = this.bestKey;
+    for (; b !== -1; b = pool[b]) {
+      for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
+        const d2 = pointSegmentDistanceSq(x, y, z, f[q + 1], f[q + 2], f[q + 3], f[q + 4], f[q + 5], f[q + 6]);
+        if (d2 < best2 || (d2 === best2 && bestKey < 0)) {
+          const key = pool[q];
+          if (!accept((key / stride) | 0)) continue;
+          best2 = d2;
+          bestKey = key;
+        }
+      }
+    }
+    this.best2 = best2;
+    this.bestKey = bestKey;
+  }
 
   private insertSegment(a: number, s: number): void {
     const p = this.store.xyz;
@@ -188,12 +213,12 @@ export class HashGridShaftIndex implements ShaftIndex {
     const iz0 = Math.floor(Math.min(p[o + 2], p[o + 5]) * inv), iz1 = Math.floor(Math.max(p[o + 2], p[o + 5]) * inv);
     for (let k = iz0; k <= iz1; k++) {
       for (let j = iy0; j <= iy1; j++) {
-        for (let i = ix0; i <= ix1; i++) this.pushEntry(cellHash(i, j, k), key);
+        for (let i = ix0; i <= ix1; i++) this.pushEntry(cellHash(i, j, k), key, o);
       }
     }
   }
 
-  /** Head entry of the cell with hash h, or −1 if no segment touches it. */
+  /** Head block of the cell with hash h, or −1 if no segment touches it. */
   private cellHead(h: number): number {
     const cells = this.cells, mask = this.cellMask;
     for (let slot = h & mask; ; slot = (slot + 1) & mask) {
@@ -202,8 +227,9 @@ export class HashGridShaftIndex implements ShaftIndex {
     }
   }
 
-  /** Adds a key to the cell with hash h: into its head block, or a new block if that is full. */
-  private pushEntry(h: number, key: number): void {
+  /** Adds segment `key` (its points at store offset o) to the cell with hash h: into the
+   *  cell's head block, or a new one of twice that size if it is full. */
+  private pushEntry(h: number, key: number, o: number): void {
     const cells = this.cells, mask = this.cellMask;
     let slot = h & mask;
     while (cells[2 * slot + 1] !== -1 && cells[2 * slot] !== h) slot = (slot + 1) & mask;
@@ -211,26 +237,34 @@ export class HashGridShaftIndex implements ShaftIndex {
     if (b === -1) {
       cells[2 * slot] = h;
       this.cellsUsed++;
+      cells[2 * slot + 1] = b = this.newBlock(-1, FIRST_KEYS);
+    } else if (this.pool[b + 1] === this.pool[b + 2]) {
+      cells[2 * slot + 1] = b = this.newBlock(b, Math.min(MAX_KEYS, 2 * this.pool[b + 2]));
     }
-    if (b === -1 || this.blocks[b + 1] === KEYS) {
-      const nb = this.newBlock();
-      this.blocks[nb] = b; // next: the older blocks of this cell
-      cells[2 * slot + 1] = b = nb;
-    }
-    this.blocks[b + 2 + this.blocks[b + 1]++] = key;
+    const pool = this.pool, f = this.poolF, p = this.store.xyz;
+    const q = b + HEAD + ENTRY * pool[b + 1]++;
+    pool[q] = key;
+    f[q + 1] = p[o]; f[q + 2] = p[o + 1]; f[q + 3] = p[o + 2];
+    f[q + 4] = p[o + 3]; f[q + 5] = p[o + 4]; f[q + 6] = p[o + 5];
     this.entryCount++;
     if (10 * this.cellsUsed > 7 * (mask + 1)) this.growCells();
   }
 
-  /** Offset of a fresh empty block (the pool doubles when full). */
-  private newBlock(): number {
-    if ((this.blockCount + 1) * BLOCK > this.blocks.length) {
-      const grown = new Int32Array(this.blocks.length * 2);
-      grown.set(this.blocks);
-      this.blocks = grown;
+  /** Offset of a fresh empty block of `capacity` entries linked to `next` (the pool doubles
+   *  when full). */
+  private newBlock(next: number, capacity: number): number {
+    const size = HEAD + ENTRY * capacity;
+    if (this.poolUsed + size > this.pool.length) {
+      const grown = new Int32Array(Math.max(2 * this.pool.length, this.poolUsed + size));
+      grown.set(this.pool);
+      this.pool = grown;
+      this.poolF = new Float32Array(grown.buffer);
     }
-    const b = this.blockCount++ * BLOCK;
-    this.blocks[b + 1] = 0;
+    const b = this.poolUsed;
+    this.poolUsed += size;
+    this.pool[b] = next;
+    this.pool[b + 1] = 0;
+    this.pool[b + 2] = capacity;
     return b;
   }
 
@@ -252,11 +286,11 @@ export class HashGridShaftIndex implements ShaftIndex {
 
   /** The store doubled its per-axon stride: rewrite every key a·old + s as a·stride + s. */
   private rekey(old: number, stride: number): void {
-    const blocks = this.blocks;
-    for (let b = 0; b < this.blockCount * BLOCK; b += BLOCK) {
-      for (let q = b + 2, end = b + 2 + blocks[b + 1]; q < end; q++) {
-        const a = (blocks[q] / old) | 0;
-        blocks[q] += a * (stride - old);
+    const pool = this.pool;
+    for (let b = 0; b < this.poolUsed; b += HEAD + ENTRY * pool[b + 2]) {
+      for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
+        const a = (pool[q] / old) | 0;
+        pool[q] += a * (stride - old);
       }
     }
     this.keyStride = stride;

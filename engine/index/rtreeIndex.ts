@@ -90,6 +90,10 @@ export class RTreeShaftIndex implements ShaftIndex {
     this.tight = new Float64Array(this.store.axonCapacity * 6);
   }
 
+  get shafts(): ShaftStore {
+    return this.store;
+  }
+
   get segmentCount(): number {
     return this.store.segmentCount;
   }

@@ -16,7 +16,7 @@ import { buildWorld, simulate, type World } from '../../engine/sim/simulate.ts';
 import type { FasciculationRule } from '../../engine/agents/fasciculation.ts';
 import type { FasciculationMetrics } from '../../engine/metrics/fasciculation.ts';
 import { fasciculationMetrics } from '../../engine/metrics/fasciculation.ts';
-import { ShaftStore, createShaftIndex } from '../../engine/index/shaftIndex.ts';
+import { createShaftIndex } from '../../engine/index/shaftIndex.ts';
 import { STATUS_CODE } from '../../engine/io/runFormat.ts';
 import { ROOT, cli, tempDir } from '../helpers.ts';
 
@@ -121,17 +121,12 @@ describe('bundles.json: followers bundle onto pioneers', async () => {
 
   it('the incremental index holds every shaft: metrics equal a brute-force index rebuilt from the frames', async () => {
     const r = await run(RAW, undefined, 1, 40); // 8 pioneers, 32 followers
-    const n = r.world.cones.count, store = new ShaftStore(n, 8), brute = createShaftIndex('brute', { axons: n, maxPointsPerAxon: 8 });
+    const n = r.world.cones.count, brute = createShaftIndex('brute', { axons: n, maxPointsPerAxon: 8 });
+    const store = brute.shafts;
     for (let i = 0; i < n; i++) {
       for (let f = 0; f < r.frames.length; f++) {
         const x = r.frames[f][3 * i], y = r.frames[f][3 * i + 1], z = r.frames[f][3 * i + 2];
-        const k = store.pointCount[i];
-        if (k > 0) {
-          const o = store.offset(i, k - 1);
-          if (store.xyz[o] === x && store.xyz[o + 1] === y && store.xyz[o + 2] === z) continue;
-        }
-        store.append(i, x, y, z);
-        brute.append(i, x, y, z);
+        if (!store.isLastPoint(i, x, y, z)) brute.append(i, x, y, z);
       }
     }
     const w = r.world, cls = (i: number) => w.populations[w.cones.population[i]].spec.adhesion!;

@@ -95,7 +95,8 @@ describe('fasciculatedFraction on random shafts vs a three.js oracle', () => {
     fc.tuple(vec(30), fc.array(vec(6), { minLength: 1, maxLength: 15 })).map(([s, steps]) => {
       const pts: V3[] = [s];
       for (const d of steps) { const p = pts[pts.length - 1]; pts.push([p[0] + d[0], p[1] + d[1], p[2] + d[2]]); }
-      return pts;
+      // the store keeps float32 points (engine/index/shaftIndex.ts): the oracle measures those
+      return pts.map((p) => p.map(Math.fround) as V3);
     }),
     { minLength: 1, maxLength: 8 },
   );

@@ -99,7 +99,9 @@ function runScene(sc: Scene): void {
   for (const stage of stages) {
     for (; done < stage; done++) {
       const [a, p] = events[done];
-      shafts[a].push(p);
+      // The store keeps float32 points (engine/index/shaftIndex.ts); the oracle measures the
+      // same rounded points the indexes hold.
+      shafts[a].push([Math.fround(p[0]), Math.fround(p[1]), Math.fround(p[2])]);
       for (const ix of indexes) ix.append(a, ...p);
     }
     const segs = shafts.reduce((n, s) => n + Math.max(0, s.length - 1), 0);
