@@ -42,13 +42,17 @@
 // for them); the hot path allocates nothing (one reused NearestSegment, one accept callback).
 //
 // Search. A cone that found a shaft holds it: next step it looks only at the held shaft's
-// segments around the last nearest one (nearestOnShaft), and searches the index again every
-// RESEARCH_STEPS steps (staggered over the axons) or as soon as it has lost the held shaft. Such
-// a search starts from the held shaft's distance d as its radius (nearestFromHint: the nearest
-// within r_f lies within d), so in a bundle it covers a box of a few µm, not 2·r_f. So "nearest"
-// above means: the held shaft, replaced by a nearer one at the next search. Measured in
-// test/bench/fasciculation.bench.ts's scene (10,000 axons × 60 steps converging into one crowded
-// bundle), this cut the step loop from 6.6 to 2.5 CPU s against a plain index query per step.
+// segments around the last nearest one (nearestOnShaft), and searches the index again each time
+// it has grown RESEARCH_RADII capture radii (RESEARCH_RADII·r_f of shaft) since its last search,
+// or as soon as it has lost the held shaft. The interval is a length, not a step count, so a
+// run's behaviour does not hang on the time step; the first interval is staggered over the axons
+// (golden-ratio offsets) so the searches do not all fall on one step. A search starts from the
+// held shaft's distance d as its radius (nearestFromHint: the nearest within r_f lies within
+// d). So "nearest" above means: the held shaft, replaced by a nearer one at the next search.
+// Measured in test/bench/fasciculation.bench.ts's scene (10,000 axons × 60 steps of 10 µm
+// converging into one crowded bundle): following instead of an index query every step cut the
+// step loop from 6.6 to 2.5 CPU s; a search every 5·r_f (75 µm, 7.5 steps) instead of every 4
+// steps cut the fasciculation share of it by a further fifth (README, benchmark table).
 //
 // Which index serves the hot path: the hash grid (cell edge = the largest r_f), by measurement in
 // the same benchmark at 2,000 axons (median of 3): fasciculation cost 0.13 CPU s of the step loop
@@ -70,8 +74,9 @@ import { fasciculationMetrics, nearestFromHint, nearestOnShaft, HINT_WINDOW, typ
 
 /** Segments either side of the nearest one that set the shaft direction t̂ (see the header). */
 export const TANGENT_WINDOW = 2;
-/** A cone holding a shaft searches the index for a nearer one every this many steps (see the header). */
-export const RESEARCH_STEPS = 4;
+/** A cone holding a shaft searches the index for a nearer one each time it has grown this many
+ *  capture radii since its last search (see the header). */
+export const RESEARCH_RADII = 5;
 
 /** The index behind the steering queries (chosen by measurement, see the header). */
 export const HOT_INDEX: ShaftIndexKind = 'hashgrid';
@@ -183,6 +188,9 @@ export class FasciculationRule implements GrowthRule {
    *  step's search (nearestFromHint: same answer, a much smaller search box for a riding cone) */
   private readonly lastAxon: Int32Array;
   private readonly lastSegment: Int32Array;
+  /** per shaft id: µm grown since the last index search, and the length that calls the next */
+  private readonly sinceSearch: Float32Array;
+  private readonly searchEvery: Float32Array;
   private readonly near: NearestSegment = createNearestSegment();
   private readonly f = new Float64Array(3);
   private readonly t = new Float64Array(3);
@@ -192,7 +200,6 @@ export class FasciculationRule implements GrowthRule {
   private qRow = 0;
   private readonly accept: (id: number) => boolean;
   private result: FasciculationMetrics | undefined;
-  private step = 0;
 
   constructor(world: World, kind: ShaftIndexKind) {
     this.world = world;
@@ -247,11 +254,17 @@ export class FasciculationRule implements GrowthRule {
     this.started = new Uint8Array(n);
     this.lastAxon = new Int32Array(n).fill(-1);
     this.lastSegment = new Int32Array(n);
+    this.sinceSearch = new Float32Array(n);
+    this.searchEvery = new Float32Array(n);
+    for (let id = 0; id < n; id++) {
+      const every = RESEARCH_RADII * this.radius[cones.population[this.axonOf[id]]];
+      this.searchEvery[id] = every;
+      this.sinceSearch[id] = every * ((id * 0.6180339887498949) % 1); // staggered first interval
+    }
     this.accept = (other: number) => other !== this.qSelf && this.compat[this.qRow + this.classOf[other]] === 1;
   }
 
-  beforeStep(step: number): void {
-    this.step = step;
+  beforeStep(): void {
     this.flush();
   }
 
@@ -264,11 +277,15 @@ export class FasciculationRule implements GrowthRule {
     this.qRow = P * this.classCount;
     const near = this.near;
     const self = this.qSelf, held = this.lastAxon[self];
-    // Between re-searches a cone follows the shaft it held last step; where it has lost it, or
-    // every RESEARCH_STEPS steps, it searches the index (from the held shaft's bound).
-    const follow = held >= 0 && (this.step + self) % RESEARCH_STEPS !== 0;
-    const found = (follow && nearestOnShaft(this.shafts, x, y, z, r, held, this.lastSegment[self], HINT_WINDOW, near))
-      || nearestFromHint(this.index, this.shafts, x, y, z, r, this.accept, follow ? -1 : held, this.lastSegment[self], HINT_WINDOW, near);
+    // Between searches a cone follows the shaft it held last step; where it has lost it, or
+    // has grown RESEARCH_RADII·r_f since its last search, it searches the index (from the held
+    // shaft's bound).
+    const follow = held >= 0 && this.sinceSearch[self] < this.searchEvery[self];
+    let found = follow && nearestOnShaft(this.shafts, x, y, z, r, held, this.lastSegment[self], HINT_WINDOW, near);
+    if (!found) {
+      found = nearestFromHint(this.index, this.shafts, x, y, z, r, this.accept, follow ? -1 : held, this.lastSegment[self], HINT_WINDOW, near);
+      this.sinceSearch[self] = 0;
+    }
     if (!found) {
       this.lastAxon[self] = -1;
       return;
@@ -305,6 +322,9 @@ export class FasciculationRule implements GrowthRule {
       this.appendPoint(id, x0, y0, z0);
     }
     this.pending[this.pendingCount++] = id;
+    const pos = this.world.cones.position, o = 3 * i;
+    const dx = pos[o] - x0, dy = pos[o + 1] - y0, dz = pos[o + 2] - z0;
+    this.sinceSearch[id] += Math.sqrt(dx * dx + dy * dy + dz * dz);
   }
 
   finish(): void {

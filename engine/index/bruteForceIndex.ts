@@ -52,13 +52,13 @@ export function scanNearest(
   accept: (axon: number) => boolean, out: NearestSegment,
 ): boolean {
   clearNearest(out);
-  const p = store.xyz, r2 = r * r;
+  const p = store.xyz, ps = store.pointStep, r2 = r * r;
   let best2 = Infinity, bestA = -1, bestS = -1;
   for (let a = 0; a < store.axonCount; a++) {
     const n = store.pointCount[a];
     if (n < 2 || !accept(a)) continue;
-    for (let s = 0, o = store.offset(a, 0); s < n - 1; s++, o += 3) {
-      const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
+    for (let s = 0, o = store.offset(a, 0); s < n - 1; s++, o += ps) {
+      const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
       if (d2 <= r2 && d2 < best2) {
         best2 = d2;
         bestA = a;
@@ -75,11 +75,11 @@ export function scanWithin(
   store: ShaftStore, x: number, y: number, z: number, r: number,
   visit: (axon: number, segment: number, distance: number) => void,
 ): void {
-  const p = store.xyz, r2 = r * r;
+  const p = store.xyz, ps = store.pointStep, r2 = r * r;
   for (let a = 0; a < store.axonCount; a++) {
     const n = store.pointCount[a];
-    for (let s = 0, o = store.offset(a, 0); s < n - 1; s++, o += 3) {
-      const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
+    for (let s = 0, o = store.offset(a, 0); s < n - 1; s++, o += ps) {
+      const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
       if (d2 <= r2) visit(a, s, Math.sqrt(d2));
     }
   }

@@ -2,19 +2,19 @@
 //
 // Space is cut into cubes of edge `cellSize`. A cell table (open addressing, linear probing)
 // maps each occupied cell's 32-bit hash to the head of a singly linked list of blocks of
-// entries. A segment is entered in every cell its bounding box touches, so a query visits only
-// the cells its own box touches. An entry is the segment's key a·stride + s and a copy of its
-// two end points, the same float32 values the shaft store holds.
+// segment keys a·stride + s. A segment is entered in every cell its bounding box touches, so a
+// query visits only the cells its own box touches; candidates are measured on the shaft
+// store's points.
 //
-// Why copy the end points into the entries: these queries are bound by memory latency, not
-// arithmetic. With keys alone every candidate sent the query to a random place in the shaft
-// store, one cache miss per candidate; with the points beside the key a cell is read in order
-// and the store is not touched until the answer is filled in. Distances come out bit for bit
-// as the store's points give them, so answers stay identical to brute force.
-// Why blocks that double in size along a cell's list (4, 8, 16, … up to MAX_KEYS entries): a
-// cell's entries then sit in a few long runs of memory instead of many small blocks spread
-// over the pool in growth order (all axons append one segment per step, so one cell's segments
-// arrive far apart in time), at most half a block wasted per cell.
+// Why blocks that double in size along a cell's list (4, 8, 16, … up to MAX_KEYS keys): a
+// cell's keys then sit in a few runs of memory instead of many small blocks spread over the
+// pool in growth order (all axons append one segment per step, so one cell's segments arrive
+// far apart in time).
+// Why keys only, not copies of the end points beside them: a copy made queries in a crowded
+// bundle about 1.4× faster, but made the pool seven times larger, and appends (every cone,
+// every step) twice as slow from the extra memory touched; with the shaft store laid out by
+// point number (shaftIndex.ts) the candidates' points mostly sit in a few cached rows anyway.
+// Measured in replays of the queries and appends of test/bench/fasciculation.bench.ts's run.
 // Why store the cell's hash in the table: an empty cell then costs one probe and never a walk
 // through some other cell's list. Two cells with the same 32-bit hash would share a list; that
 // costs distance tests, never a wrong answer, since every candidate is measured exactly.
@@ -24,7 +24,7 @@
 // segment is usually far nearer than r, so most cells of the query box are never read. It needs
 // no de-duplication (a segment met again through another cell measures the same distance,
 // which is no improvement). segmentsWithin marks segments met with a per-query stamp so each
-// is reported once. Measured on test/bench/fasciculation.bench.ts and index.bench.ts: README.
+// is reported once.
 //
 // Appending a segment is O(cells it touches); the pool doubles when full and the cell table
 // doubles (rehashing cells only, blocks stay put) above 70 % load, so appends are amortised
@@ -43,10 +43,8 @@ import {
 import { scanNearest, scanWithin } from './bruteForceIndex.ts';
 
 const DEFAULT_CELL_SIZE = 20; // µm, upper end of the fasciculation radius
-/** A block is [next block or −1, entry count, capacity, entry × capacity] in one Int32Array
- *  seen also as Float32Array; an entry is [key, ax, ay, az, bx, by, bz]. */
+/** A block is [next block or −1, key count, capacity, key × capacity]. */
 const HEAD = 3;
-const ENTRY = 7;
 const FIRST_KEYS = 4;
 const MAX_KEYS = 64;
 
@@ -58,10 +56,8 @@ export class HashGridShaftIndex implements ShaftIndex {
   private cells: Int32Array;
   private cellMask: number;
   private cellsUsed = 0;
-  /** block pool, one buffer seen as ints (links, counts, keys) and as floats (end points);
-   *  blocks are laid end to end from word 0 to poolUsed */
+  /** block pool: blocks laid end to end from word 0 to poolUsed */
   private pool: Int32Array;
-  private poolF: Float32Array;
   private poolUsed = 0;
   /** entries made, over all cells (a segment counts once per cell it touches) */
   private entryCount = 0;
@@ -80,12 +76,12 @@ export class HashGridShaftIndex implements ShaftIndex {
     this.inv = 1 / cellSize;
     this.store = new ShaftStore(opts.axons, opts.maxPointsPerAxon);
     this.keyStride = this.store.stride;
-    // Sized for the expected segment count, about two entries each (a growth step of a few
-    // µm against a cell ~ the query radius touches 1–3 cells); the pool doubles when the guess
-    // is low. Occupied cells depend on the volume, not known here.
+    // Sized for the expected segment count: about 2.2 keys each (a growth step of up to half a
+    // cell touches 1–3 cells; measured in test/bench/fasciculation.bench.ts) plus the blocks'
+    // headers and unfilled tails, so that a run as announced rarely copies the pool; it doubles
+    // when the guess is low. Occupied cells depend on the volume, not known here.
     const expected = Math.max(1024, Math.ceil(opts.axons) * Math.ceil(opts.maxPointsPerAxon));
-    this.pool = new Int32Array(2 * ENTRY * expected);
-    this.poolF = new Float32Array(this.pool.buffer);
+    this.pool = new Int32Array(4 * expected);
     this.cells = new Int32Array(2 * 4096).fill(-1);
     this.cellMask = 4096 - 1;
     this.stamp = new Int32Array(this.store.axonCapacity * this.store.stride);
@@ -140,8 +136,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     }
     const key = this.bestKey;
     if (key >= 0) {
-      const stride = this.store.stride, a = (key / stride) | 0;
-      fillNearest(out, this.store, a, key - a * stride, x, y, z, this.best2);
+      fillNearest(out, this.store, key >>> this.store.strideShift, key & (this.store.stride - 1), x, y, z, this.best2);
     }
     return out.found;
   }
@@ -157,7 +152,8 @@ export class HashGridShaftIndex implements ShaftIndex {
     const iz0 = Math.floor((z - e) * inv), iz1 = Math.floor((z + e) * inv);
     if (this.tooManyCells(ix0, ix1, iy0, iy1, iz0, iz1)) return scanWithin(this.store, x, y, z, r, visit);
     const stamp = this.stamp, st = this.nextStamp();
-    const pool = this.pool, f = this.poolF, stride = this.store.stride;
+    const store = this.store, pool = this.pool, p = store.xyz, ps = store.pointStep;
+    const shift = store.strideShift, mask = store.stride - 1;
     const cs = this.cellSize, cull2 = (r + BOX_SLACK) ** 2;
     for (let k = iz0; k <= iz1; k++) {
       const dz = gap(z, k * cs, cs);
@@ -166,14 +162,14 @@ export class HashGridShaftIndex implements ShaftIndex {
         for (let i = ix0; i <= ix1; i++) {
           if (gap(x, i * cs, cs) ** 2 + dyz > cull2) continue;
           for (let b = this.cellHead(cellHash(i, j, k)); b !== -1; b = pool[b]) {
-            for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
-              const d2 = pointSegmentDistanceSq(x, y, z, f[q + 1], f[q + 2], f[q + 3], f[q + 4], f[q + 5], f[q + 6]);
-              if (d2 > r2) continue;
+            for (let q = b + HEAD, end = q + pool[b + 1]; q < end; q++) {
               const key = pool[q];
               if (stamp[key] === st) continue;
               stamp[key] = st;
-              const a = (key / stride) | 0;
-              visit(a, key - a * stride, Math.sqrt(d2));
+              const a = key >>> shift, o = store.offset(a, key & mask);
+              const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
+              if (d2 > r2) continue;
+              visit(a, key & mask, Math.sqrt(d2));
             }
           }
         }
@@ -186,14 +182,16 @@ export class HashGridShaftIndex implements ShaftIndex {
   /** Scans one cell's blocks for an accepted segment nearer than best2, updating best2 and
    *  bestKey (the first of equals found, and one exactly at r counts). */
   private scanCellNearest(b: number, x: number, y: number, z: number, accept: (axon: number) => boolean): void {
-    const pool = this.pool, f = this.poolF, stride = this.store.stride;
+    const store = this.store, pool = this.pool, p = store.xyz, ps = store.pointStep;
+    const shift = store.strideShift, mask = store.stride - 1;
     let best2 = this.best2, bestKey = this.bestKey;
     for (; b !== -1; b = pool[b]) {
-      for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
-        const d2 = pointSegmentDistanceSq(x, y, z, f[q + 1], f[q + 2], f[q + 3], f[q + 4], f[q + 5], f[q + 6]);
+      for (let q = b + HEAD, end = q + pool[b + 1]; q < end; q++) {
+        const key = pool[q];
+        const a = key >>> shift, o = store.offset(a, key & mask);
+        const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
         if (d2 < best2 || (d2 === best2 && bestKey < 0)) {
-          const key = pool[q];
-          if (!accept((key / stride) | 0)) continue;
+          if (!accept(a)) continue;
           best2 = d2;
           bestKey = key;
         }
@@ -205,15 +203,15 @@ export class HashGridShaftIndex implements ShaftIndex {
 
   private insertSegment(a: number, s: number): void {
     const p = this.store.xyz;
-    const o = this.store.offset(a, s);
+    const o = this.store.offset(a, s), o1 = o + this.store.pointStep;
     const key = a * this.store.stride + s;
     const inv = this.inv;
-    const ix0 = Math.floor(Math.min(p[o], p[o + 3]) * inv), ix1 = Math.floor(Math.max(p[o], p[o + 3]) * inv);
-    const iy0 = Math.floor(Math.min(p[o + 1], p[o + 4]) * inv), iy1 = Math.floor(Math.max(p[o + 1], p[o + 4]) * inv);
-    const iz0 = Math.floor(Math.min(p[o + 2], p[o + 5]) * inv), iz1 = Math.floor(Math.max(p[o + 2], p[o + 5]) * inv);
+    const ix0 = Math.floor(Math.min(p[o], p[o1]) * inv), ix1 = Math.floor(Math.max(p[o], p[o1]) * inv);
+    const iy0 = Math.floor(Math.min(p[o + 1], p[o1 + 1]) * inv), iy1 = Math.floor(Math.max(p[o + 1], p[o1 + 1]) * inv);
+    const iz0 = Math.floor(Math.min(p[o + 2], p[o1 + 2]) * inv), iz1 = Math.floor(Math.max(p[o + 2], p[o1 + 2]) * inv);
     for (let k = iz0; k <= iz1; k++) {
       for (let j = iy0; j <= iy1; j++) {
-        for (let i = ix0; i <= ix1; i++) this.pushEntry(cellHash(i, j, k), key, o);
+        for (let i = ix0; i <= ix1; i++) this.pushEntry(cellHash(i, j, k), key);
       }
     }
   }
@@ -227,9 +225,9 @@ export class HashGridShaftIndex implements ShaftIndex {
     }
   }
 
-  /** Adds segment `key` (its points at store offset o) to the cell with hash h: into the
-   *  cell's head block, or a new one of twice that size if it is full. */
-  private pushEntry(h: number, key: number, o: number): void {
+  /** Adds segment `key` to the cell with hash h: into the cell's head block, or a new one of
+   *  twice that size if it is full. */
+  private pushEntry(h: number, key: number): void {
     const cells = this.cells, mask = this.cellMask;
     let slot = h & mask;
     while (cells[2 * slot + 1] !== -1 && cells[2 * slot] !== h) slot = (slot + 1) & mask;
@@ -241,11 +239,8 @@ export class HashGridShaftIndex implements ShaftIndex {
     } else if (this.pool[b + 1] === this.pool[b + 2]) {
       cells[2 * slot + 1] = b = this.newBlock(b, Math.min(MAX_KEYS, 2 * this.pool[b + 2]));
     }
-    const pool = this.pool, f = this.poolF, p = this.store.xyz;
-    const q = b + HEAD + ENTRY * pool[b + 1]++;
-    pool[q] = key;
-    f[q + 1] = p[o]; f[q + 2] = p[o + 1]; f[q + 3] = p[o + 2];
-    f[q + 4] = p[o + 3]; f[q + 5] = p[o + 4]; f[q + 6] = p[o + 5];
+    const pool = this.pool;
+    pool[b + HEAD + pool[b + 1]++] = key;
     this.entryCount++;
     if (10 * this.cellsUsed > 7 * (mask + 1)) this.growCells();
   }
@@ -253,12 +248,11 @@ export class HashGridShaftIndex implements ShaftIndex {
   /** Offset of a fresh empty block of `capacity` entries linked to `next` (the pool doubles
    *  when full). */
   private newBlock(next: number, capacity: number): number {
-    const size = HEAD + ENTRY * capacity;
+    const size = HEAD + capacity;
     if (this.poolUsed + size > this.pool.length) {
       const grown = new Int32Array(Math.max(2 * this.pool.length, this.poolUsed + size));
       grown.set(this.pool);
       this.pool = grown;
-      this.poolF = new Float32Array(grown.buffer);
     }
     const b = this.poolUsed;
     this.poolUsed += size;
@@ -287,8 +281,8 @@ export class HashGridShaftIndex implements ShaftIndex {
   /** The store doubled its per-axon stride: rewrite every key a·old + s as a·stride + s. */
   private rekey(old: number, stride: number): void {
     const pool = this.pool;
-    for (let b = 0; b < this.poolUsed; b += HEAD + ENTRY * pool[b + 2]) {
-      for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
+    for (let b = 0; b < this.poolUsed; b += HEAD + pool[b + 2]) {
+      for (let q = b + HEAD, end = q + pool[b + 1]; q < end; q++) {
         const a = (pool[q] / old) | 0;
         pool[q] += a * (stride - old);
       }

@@ -110,7 +110,8 @@ export class RTreeShaftIndex implements ShaftIndex {
     const s = n - 2; // the new segment
     const p = store.xyz, o = store.offset(axon, s);
     const u0 = p[o + this.iu], v0 = p[o + this.iv], w0 = p[o + this.iw];
-    const u1 = p[o + 3 + this.iu], v1 = p[o + 3 + this.iv], w1 = p[o + 3 + this.iw];
+    const o1 = o + store.pointStep;
+    const u1 = p[o1 + this.iu], v1 = p[o1 + this.iv], w1 = p[o1 + this.iw];
     const len = Math.sqrt((u1 - u0) ** 2 + (v1 - v0) ** 2 + (w1 - w0) ** 2);
     const K = this.chunkSize, t = this.tight, b = axon * 6;
     let c = this.open[axon] ?? null;
@@ -152,7 +153,7 @@ export class RTreeShaftIndex implements ShaftIndex {
     accept: (axon: number) => boolean, out: NearestSegment,
   ): boolean {
     clearNearest(out);
-    const store = this.store, p = store.xyz;
+    const store = this.store, p = store.xyz, ps = store.pointStep;
     const qu = pick(this.iu, x, y, z), qv = pick(this.iv, x, y, z), qw = pick(this.iw, x, y, z);
     const r2 = r * r;
     let best2 = Infinity, bestA = -1, bestS = -1;
@@ -179,8 +180,8 @@ export class RTreeShaftIndex implements ShaftIndex {
         if (boxDist2(c.minX, c.minY, c.maxX, c.maxY, qu, qv) + dw * dw > cull2) continue;
         if (!accept(c.axon)) continue;
         let o = store.offset(c.axon, c.first);
-        for (let s = 0; s < c.count; s++, o += 3) {
-          const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
+        for (let s = 0; s < c.count; s++, o += ps) {
+          const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
           if (d2 <= r2 && d2 < best2) {
             best2 = d2;
             bestA = c.axon;
@@ -199,7 +200,7 @@ export class RTreeShaftIndex implements ShaftIndex {
     x: number, y: number, z: number, r: number,
     visit: (axon: number, segment: number, distance: number) => void,
   ): void {
-    const store = this.store, p = store.xyz;
+    const store = this.store, p = store.xyz, ps = store.pointStep;
     const qu = pick(this.iu, x, y, z), qv = pick(this.iv, x, y, z), qw = pick(this.iw, x, y, z);
     const r2 = r * r;
     const cull = r + BOX_SLACK, cull2 = cull * cull;
@@ -222,8 +223,8 @@ export class RTreeShaftIndex implements ShaftIndex {
         const dw = qw < c.minW ? c.minW - qw : qw > c.maxW ? qw - c.maxW : 0;
         if (boxDist2(c.minX, c.minY, c.maxX, c.maxY, qu, qv) + dw * dw > cull2) continue;
         let o = store.offset(c.axon, c.first);
-        for (let s = 0; s < c.count; s++, o += 3) {
-          const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
+        for (let s = 0; s < c.count; s++, o += ps) {
+          const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
           if (d2 <= r2) visit(c.axon, c.first + s, Math.sqrt(d2));
         }
       }

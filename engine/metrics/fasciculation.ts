@@ -77,7 +77,7 @@ export function fasciculationMetrics(input: FasciculationInput): FasciculationMe
   const { shafts, index, radius, adheres } = input;
   const linkShare = input.linkShare ?? 0.1;
   const n = shafts.axonCount;
-  const p = shafts.xyz;
+  const p = shafts.xyz, ps = shafts.pointStep;
 
   const length = new Float64Array(n);
   const fasc = new Float64Array(n);
@@ -94,8 +94,8 @@ export function fasciculationMetrics(input: FasciculationInput): FasciculationMe
   for (a = 0; a < n; a++) {
     const r = radius[a];
     let hintAxon = -1, hintSegment = 0;
-    for (let s = 0, o = shafts.offset(a, 0); s < shafts.pointCount[a] - 1; s++, o += 3) {
-      const dx = p[o + 3] - p[o], dy = p[o + 4] - p[o + 1], dz = p[o + 5] - p[o + 2];
+    for (let s = 0, o = shafts.offset(a, 0); s < shafts.pointCount[a] - 1; s++, o += ps) {
+      const dx = p[o + ps] - p[o], dy = p[o + ps + 1] - p[o + 1], dz = p[o + ps + 2] - p[o + 2];
       const len = Math.sqrt(dx * dx + dy * dy + dz * dz);
       if (len === 0) continue;
       length[a] += len;
@@ -185,12 +185,12 @@ export function nearestOnShaft(
   axon: number, segment: number, window: number,
   out: NearestSegment,
 ): boolean {
-  const p = shafts.xyz;
+  const p = shafts.xyz, ps = shafts.pointStep;
   const s0 = Math.max(0, segment - window);
   const s1 = Math.min(shafts.pointCount[axon] - 2, segment + window);
   let bestS = -1, best2 = r * r;
-  for (let s = s0, o = shafts.offset(axon, s0); s <= s1; s++, o += 3) {
-    const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + 3], p[o + 4], p[o + 5]);
+  for (let s = s0, o = shafts.offset(axon, s0); s <= s1; s++, o += ps) {
+    const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
     if (d2 <= best2) {
       best2 = d2;
       bestS = s;
