@@ -55,10 +55,10 @@
 // steps cut the fasciculation share of it by a further fifth (README, benchmark table).
 //
 // Which index serves the hot path: the hash grid (cell edge = the largest r_f), by measurement in
-// the same benchmark at 2,000 axons (median of 3): fasciculation cost 0.13 CPU s of the step loop
-// on the hash grid against 4.3 s on the R-tree, end-of-run metrics 0.08 s against 1.1 s (a
+// the same benchmark at 2,000 axons (median of 3): fasciculation cost 0.12 CPU s of the step loop
+// on the hash grid against 2.2 s on the R-tree, end-of-run metrics 0.04 s against 1.1 s (a
 // likely reason: the R-tree indexes a 2D projection and filters the third axis chunk by chunk,
-// and a bundle's chunk boxes overlap). Smaller hash cells, r_f/2 and r_f/3, measured no faster.
+// and a bundle's chunk boxes overlap). Hash cells of r_f/2, r_f/3 and 2·r_f measured slower.
 // test/bench/index.bench.ts agrees at uniform density (nearest segment within 15 µm, 500 steps
 // per axon): 5.0 µs per query on the hash grid against 15.8 on the R-tree at 1,000 axons, 7.8
 // against 58.9 at 10,000.
