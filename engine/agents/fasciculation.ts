@@ -52,7 +52,7 @@
 // Measured in test/bench/fasciculation.bench.ts's scene (10,000 axons × 60 steps of 10 µm
 // converging into one crowded bundle): following instead of an index query every step cut the
 // step loop from 6.6 to 2.5 CPU s; a search every 5·r_f (75 µm, 7.5 steps) instead of every 4
-// steps cut the fasciculation share of it by a further fifth (README, benchmark table).
+// steps cut the fasciculation share of it by about a fifth more (0.80 to 0.65 CPU s, best of 5).
 //
 // Which index serves the hot path: the hash grid (cell edge = the largest r_f), by measurement in
 // the same benchmark at 2,000 axons (median of 3): fasciculation cost 0.12 CPU s of the step loop
@@ -60,8 +60,8 @@
 // likely reason: the R-tree indexes a 2D projection and filters the third axis chunk by chunk,
 // and a bundle's chunk boxes overlap). Hash cells of r_f/2, r_f/3 and 2·r_f measured slower.
 // test/bench/index.bench.ts agrees at uniform density (nearest segment within 15 µm, 500 steps
-// per axon): 5.0 µs per query on the hash grid against 15.8 on the R-tree at 1,000 axons, 7.8
-// against 58.9 at 10,000.
+// per axon): 8.6 µs per query on the hash grid against 32 on the R-tree at 1,000 axons, 10.2
+// against 73 at 10,000.
 
 import type { World } from '../sim/simulate.ts';
 import type { GrowthRule } from '../sim/rules.ts';
