@@ -43,14 +43,19 @@ import {
 import { scanNearest, scanWithin } from './bruteForceIndex.ts';
 
 const DEFAULT_CELL_SIZE = 20; // µm, upper end of the fasciculation radius
-/** A block is [next block or −1, key count, capacity, key × capacity]. */
+/** A block is [next block or −1, entry count, capacity, entry × capacity]; an entry is
+ *  [key, sub-cube mask], the mask's bit i + 3j + 9k set where the segment's bounding box meets
+ *  sub-cube (i, j, k) of the cell's 3 × 3 × 3. */
 const HEAD = 3;
+const ENTRY = 2;
 const FIRST_KEYS = 4;
 const MAX_KEYS = 64;
 
 export class HashGridShaftIndex implements ShaftIndex {
   readonly cellSize: number;
   private readonly inv: number;
+  /** 3 / cellSize: sub-cubes per µm */
+  private readonly subInv: number;
   private readonly store: ShaftStore;
   /** cell table, 2 ints per slot: [cell hash, head block]; head −1 marks an empty slot */
   private cells: Int32Array;
@@ -74,6 +79,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     if (!(cellSize > 0) || !Number.isFinite(cellSize)) throw new RangeError(`cellSize must be > 0, got ${cellSize}`);
     this.cellSize = cellSize;
     this.inv = 1 / cellSize;
+    this.subInv = 3 / cellSize;
     this.store = new ShaftStore(opts.axons, opts.maxPointsPerAxon);
     this.keyStride = this.store.stride;
     // Sized for the expected segment count: about 2.2 keys each (a growth step of up to half a
@@ -81,7 +87,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     // headers and unfilled tails, so that a run as announced rarely copies the pool; it doubles
     // when the guess is low. Occupied cells depend on the volume, not known here.
     const expected = Math.max(1024, Math.ceil(opts.axons) * Math.ceil(opts.maxPointsPerAxon));
-    this.pool = new Int32Array(4 * expected);
+    this.pool = new Int32Array(7 * expected);
     this.cells = new Int32Array(2 * 4096).fill(-1);
     this.cellMask = 4096 - 1;
     this.stamp = new Int32Array(this.store.axonCapacity * this.store.stride);
@@ -120,7 +126,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     this.best2 = r * r;
     this.bestKey = -1;
     const hx = Math.floor(x * inv), hy = Math.floor(y * inv), hz = Math.floor(z * inv);
-    this.scanCellNearest(this.cellHead(cellHash(hx, hy, hz)), x, y, z, accept);
+    this.scanCellNearest(this.cellHead(cellHash(hx, hy, hz)), hx, hy, hz, x, y, z, accept);
     for (let k = iz0; k <= iz1; k++) {
       const dz = gap(z, k * cs, cs);
       for (let j = iy0; j <= iy1; j++) {
@@ -130,7 +136,7 @@ export class HashGridShaftIndex implements ShaftIndex {
           // nothing nearer; the slack keeps a segment on the cube's face from being culled.
           const cull = Math.sqrt(this.best2) + BOX_SLACK;
           if (gap(x, i * cs, cs) ** 2 + dyz > cull * cull || (i === hx && j === hy && k === hz)) continue;
-          this.scanCellNearest(this.cellHead(cellHash(i, j, k)), x, y, z, accept);
+          this.scanCellNearest(this.cellHead(cellHash(i, j, k)), i, j, k, x, y, z, accept);
         }
       }
     }
@@ -161,8 +167,10 @@ export class HashGridShaftIndex implements ShaftIndex {
         const dyz = gap(y, j * cs, cs) ** 2 + dz * dz;
         for (let i = ix0; i <= ix1; i++) {
           if (gap(x, i * cs, cs) ** 2 + dyz > cull2) continue;
+          const near = this.boxMask(x - e, x + e, y - e, y + e, z - e, z + e, i, j, k);
           for (let b = this.cellHead(cellHash(i, j, k)); b !== -1; b = pool[b]) {
-            for (let q = b + HEAD, end = q + pool[b + 1]; q < end; q++) {
+            for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
+              if ((pool[q + 1] & near) === 0) continue;
               const key = pool[q];
               if (stamp[key] === st) continue;
               stamp[key] = st;
@@ -179,14 +187,23 @@ export class HashGridShaftIndex implements ShaftIndex {
 
   // -------------------------------------------------------------------------------------------
 
-  /** Scans one cell's blocks for an accepted segment nearer than best2, updating best2 and
-   *  bestKey (the first of equals found, and one exactly at r counts). */
-  private scanCellNearest(b: number, x: number, y: number, z: number, accept: (axon: number) => boolean): void {
+  /** Scans the blocks of cell (i, j, k) for an accepted segment nearer than best2, updating
+   *  best2 and bestKey (the first of equals found, and one exactly at r counts). A segment
+   *  whose box meets none of the sub-cubes that the box around (x, y, z) of half-side
+   *  √best2 meets is skipped unread: its part in this cell is farther than the best so far
+   *  (any nearer part lies in another cell, where it is entered and measured). */
+  private scanCellNearest(
+    b: number, i: number, j: number, k: number,
+    x: number, y: number, z: number, accept: (axon: number) => boolean,
+  ): void {
     const store = this.store, pool = this.pool, p = store.xyz, ps = store.pointStep;
     const shift = store.strideShift, mask = store.stride - 1;
     let best2 = this.best2, bestKey = this.bestKey;
+    let e = Math.sqrt(best2) + BOX_SLACK;
+    let near = this.boxMask(x - e, x + e, y - e, y + e, z - e, z + e, i, j, k);
     for (; b !== -1; b = pool[b]) {
-      for (let q = b + HEAD, end = q + pool[b + 1]; q < end; q++) {
+      for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
+        if ((pool[q + 1] & near) === 0) continue;
         const key = pool[q];
         const a = key >>> shift, o = store.offset(a, key & mask);
         const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
@@ -194,11 +211,23 @@ export class HashGridShaftIndex implements ShaftIndex {
           if (!accept(a)) continue;
           best2 = d2;
           bestKey = key;
+          e = Math.sqrt(d2) + BOX_SLACK;
+          near = this.boxMask(x - e, x + e, y - e, y + e, z - e, z + e, i, j, k);
         }
       }
     }
     this.best2 = best2;
     this.bestKey = bestKey;
+  }
+
+  /** Sub-cube mask of the box [x0, x1] × [y0, y1] × [z0, z1] within cell (i, j, k); a box
+   *  reaching past the cell counts as touching its border sub-cubes. */
+  private boxMask(x0: number, x1: number, y0: number, y1: number, z0: number, z1: number, i: number, j: number, k: number): number {
+    const inv = this.subInv, cs = this.cellSize;
+    const ox = i * cs, oy = j * cs, oz = k * cs;
+    return AXIS_MASKS[subIndex((x0 - ox) * inv) * 3 + subIndex((x1 - ox) * inv)]
+      & AXIS_MASKS[9 + subIndex((y0 - oy) * inv) * 3 + subIndex((y1 - oy) * inv)]
+      & AXIS_MASKS[18 + subIndex((z0 - oz) * inv) * 3 + subIndex((z1 - oz) * inv)];
   }
 
   private insertSegment(a: number, s: number): void {
@@ -209,9 +238,15 @@ export class HashGridShaftIndex implements ShaftIndex {
     const ix0 = Math.floor(Math.min(p[o], p[o1]) * inv), ix1 = Math.floor(Math.max(p[o], p[o1]) * inv);
     const iy0 = Math.floor(Math.min(p[o + 1], p[o1 + 1]) * inv), iy1 = Math.floor(Math.max(p[o + 1], p[o1 + 1]) * inv);
     const iz0 = Math.floor(Math.min(p[o + 2], p[o1 + 2]) * inv), iz1 = Math.floor(Math.max(p[o + 2], p[o1 + 2]) * inv);
+    const e = BOX_SLACK;
+    const x0 = Math.min(p[o], p[o1]) - e, x1 = Math.max(p[o], p[o1]) + e;
+    const y0 = Math.min(p[o + 1], p[o1 + 1]) - e, y1 = Math.max(p[o + 1], p[o1 + 1]) + e;
+    const z0 = Math.min(p[o + 2], p[o1 + 2]) - e, z1 = Math.max(p[o + 2], p[o1 + 2]) + e;
     for (let k = iz0; k <= iz1; k++) {
       for (let j = iy0; j <= iy1; j++) {
-        for (let i = ix0; i <= ix1; i++) this.pushEntry(cellHash(i, j, k), key);
+        for (let i = ix0; i <= ix1; i++) {
+          this.pushEntry(cellHash(i, j, k), key, this.boxMask(x0, x1, y0, y1, z0, z1, i, j, k));
+        }
       }
     }
   }
@@ -227,7 +262,7 @@ export class HashGridShaftIndex implements ShaftIndex {
 
   /** Adds segment `key` to the cell with hash h: into the cell's head block, or a new one of
    *  twice that size if it is full. */
-  private pushEntry(h: number, key: number): void {
+  private pushEntry(h: number, key: number, subMask: number): void {
     const cells = this.cells, mask = this.cellMask;
     let slot = h & mask;
     while (cells[2 * slot + 1] !== -1 && cells[2 * slot] !== h) slot = (slot + 1) & mask;
@@ -239,8 +274,9 @@ export class HashGridShaftIndex implements ShaftIndex {
     } else if (this.pool[b + 1] === this.pool[b + 2]) {
       cells[2 * slot + 1] = b = this.newBlock(b, Math.min(MAX_KEYS, 2 * this.pool[b + 2]));
     }
-    const pool = this.pool;
-    pool[b + HEAD + pool[b + 1]++] = key;
+    const pool = this.pool, q = b + HEAD + ENTRY * pool[b + 1]++;
+    pool[q] = key;
+    pool[q + 1] = subMask;
     this.entryCount++;
     if (10 * this.cellsUsed > 7 * (mask + 1)) this.growCells();
   }
@@ -248,7 +284,7 @@ export class HashGridShaftIndex implements ShaftIndex {
   /** Offset of a fresh empty block of `capacity` entries linked to `next` (the pool doubles
    *  when full). */
   private newBlock(next: number, capacity: number): number {
-    const size = HEAD + capacity;
+    const size = HEAD + ENTRY * capacity;
     if (this.poolUsed + size > this.pool.length) {
       const grown = new Int32Array(Math.max(2 * this.pool.length, this.poolUsed + size));
       grown.set(this.pool);
@@ -281,8 +317,8 @@ export class HashGridShaftIndex implements ShaftIndex {
   /** The store doubled its per-axon stride: rewrite every key a·old + s as a·stride + s. */
   private rekey(old: number, stride: number): void {
     const pool = this.pool;
-    for (let b = 0; b < this.poolUsed; b += HEAD + pool[b + 2]) {
-      for (let q = b + HEAD, end = q + pool[b + 1]; q < end; q++) {
+    for (let b = 0; b < this.poolUsed; b += HEAD + ENTRY * pool[b + 2]) {
+      for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
         const a = (pool[q] / old) | 0;
         pool[q] += a * (stride - old);
       }
@@ -302,6 +338,31 @@ export class HashGridShaftIndex implements ShaftIndex {
     }
     return ++this.stampValue;
   }
+}
+
+/** AXIS_MASKS[9·axis + 3·lo + hi]: the sub-cubes (bit i + 3j + 9k) whose index along that axis
+ *  lies in lo..hi. */
+const AXIS_MASKS = (() => {
+  const m = new Int32Array(27);
+  for (let axis = 0; axis < 3; axis++) {
+    for (let lo = 0; lo < 3; lo++) {
+      for (let hi = lo; hi < 3; hi++) {
+        let bits = 0;
+        for (let c = 0; c < 27; c++) {
+          const at = axis === 0 ? c % 3 : axis === 1 ? ((c / 3) | 0) % 3 : (c / 9) | 0;
+          if (at >= lo && at <= hi) bits |= 1 << c;
+        }
+        m[9 * axis + 3 * lo + hi] = bits;
+      }
+    }
+  }
+  return m;
+})();
+
+/** Sub-cube index along one axis of a coordinate in sub-cube units from the cell's corner,
+ *  clamped to the cell. */
+function subIndex(t: number): number {
+  return t < 1 ? 0 : t < 2 ? 1 : 2;
 }
 
 /** Distance from coordinate v to the interval [lo, lo + size] (0 inside). */
