@@ -2,26 +2,33 @@
 //
 // Space is cut into cubes of edge `cellSize`. A cell table (open addressing, linear probing)
 // maps each occupied cell's 32-bit hash to the head of a singly linked list of blocks of
-// segment keys a·stride + s. A segment is entered in every cell its bounding box touches, so a
-// query visits only the cells its own box touches; candidates are measured on the shaft
-// store's points.
+// entries. A segment is entered in every cell its bounding box touches, so a query visits only
+// the cells its own box touches; candidates are measured on the shaft store's points. An entry
+// is the segment's key a·stride + s and a 27-bit mask of the sub-cubes (the cell cut 3 × 3 × 3)
+// that the segment's box meets inside the cell.
 //
-// Why blocks that double in size along a cell's list (4, 8, 16, … up to MAX_KEYS keys): a
-// cell's keys then sit in a few runs of memory instead of many small blocks spread over the
+// Why the sub-cube masks: a search in a crowded bundle reads its home cell whole (about 70
+// entries in test/bench/fasciculation.bench.ts) although, once a near segment is found, the
+// answer must lie within a small box round the query point. An entry whose mask misses every
+// sub-cube of that box is skipped without touching the shaft store, one AND instead of a
+// cache miss. Replaying that bench's searches: 2.5–2.8 µs per query against 4.3–4.9 µs with
+// keys alone; appends 220–290 ns against about 150 (the mask and the wider entry).
+// Why blocks that double in size along a cell's list (4, 8, 16, … up to MAX_KEYS entries): a
+// cell's entries then sit in a few runs of memory instead of many small blocks spread over the
 // pool in growth order (all axons append one segment per step, so one cell's segments arrive
 // far apart in time).
-// Why keys only, not copies of the end points beside them: a copy made queries in a crowded
-// bundle about 1.4× faster, but made the pool seven times larger, and appends (every cone,
-// every step) twice as slow from the extra memory touched; with the shaft store laid out by
-// point number (shaftIndex.ts) the candidates' points mostly sit in a few cached rows anyway.
-// Measured in replays of the queries and appends of test/bench/fasciculation.bench.ts's run.
+// Why not copies of the end points in the entries: they made searches about 1.4× faster than
+// keys alone, but the pool seven times larger and appends (every cone, every step) twice as
+// slow; with the shaft store laid out by point number (shaftIndex.ts) the points a search does
+// read mostly sit in a few cached rows anyway.
 // Why store the cell's hash in the table: an empty cell then costs one probe and never a walk
 // through some other cell's list. Two cells with the same 32-bit hash would share a list; that
 // costs distance tests, never a wrong answer, since every candidate is measured exactly.
 //
 // nearestSegment searches the cell holding the query point first and skips any other cell
-// whose cube lies farther than the best distance so far: in a crowded bundle the nearest
-// segment is usually far nearer than r, so most cells of the query box are never read. It needs
+// whose cube lies farther than the best distance so far, and inside a cell any entry outside
+// the best-so-far box: in a crowded bundle the nearest segment is usually far nearer than r,
+// so most cells and entries of the query box are never read. It needs
 // no de-duplication (a segment met again through another cell measures the same distance,
 // which is no improvement). segmentsWithin marks segments met with a per-query stamp so each
 // is reported once.
