@@ -89,10 +89,10 @@ export class HashGridShaftIndex implements ShaftIndex {
     this.subInv = 3 / cellSize;
     this.store = new ShaftStore(opts.axons, opts.maxPointsPerAxon);
     this.keyStride = this.store.stride;
-    // Sized for the expected segment count: about 2.2 keys each (a growth step of up to half a
-    // cell touches 1–3 cells; measured in test/bench/fasciculation.bench.ts) plus the blocks'
-    // headers and unfilled tails, so that a run as announced rarely copies the pool; it doubles
-    // when the guess is low. Occupied cells depend on the volume, not known here.
+    // Sized for the expected segment count: about 2.2 two-word entries each (a growth step of
+    // up to half a cell touches 1–3 cells; measured in test/bench/fasciculation.bench.ts) plus
+    // the blocks' headers and unfilled tails, so that a run as announced rarely copies the pool;
+    // it doubles when the guess is low. Occupied cells depend on the volume, not known here.
     const expected = Math.max(1024, Math.ceil(opts.axons) * Math.ceil(opts.maxPointsPerAxon));
     this.pool = new Int32Array(7 * expected);
     this.cells = new Int32Array(2 * 4096).fill(-1);
@@ -242,13 +242,14 @@ export class HashGridShaftIndex implements ShaftIndex {
     const o = this.store.offset(a, s), o1 = o + this.store.pointStep;
     const key = a * this.store.stride + s;
     const inv = this.inv;
-    const ix0 = Math.floor(Math.min(p[o], p[o1]) * inv), ix1 = Math.floor(Math.max(p[o], p[o1]) * inv);
-    const iy0 = Math.floor(Math.min(p[o + 1], p[o1 + 1]) * inv), iy1 = Math.floor(Math.max(p[o + 1], p[o1 + 1]) * inv);
-    const iz0 = Math.floor(Math.min(p[o + 2], p[o1 + 2]) * inv), iz1 = Math.floor(Math.max(p[o + 2], p[o1 + 2]) * inv);
+    // the segment's bounding box, grown by the slack so rounding cannot drop a sub-cube
     const e = BOX_SLACK;
     const x0 = Math.min(p[o], p[o1]) - e, x1 = Math.max(p[o], p[o1]) + e;
     const y0 = Math.min(p[o + 1], p[o1 + 1]) - e, y1 = Math.max(p[o + 1], p[o1 + 1]) + e;
     const z0 = Math.min(p[o + 2], p[o1 + 2]) - e, z1 = Math.max(p[o + 2], p[o1 + 2]) + e;
+    const ix0 = Math.floor(x0 * inv), ix1 = Math.floor(x1 * inv);
+    const iy0 = Math.floor(y0 * inv), iy1 = Math.floor(y1 * inv);
+    const iz0 = Math.floor(z0 * inv), iz1 = Math.floor(z1 * inv);
     for (let k = iz0; k <= iz1; k++) {
       for (let j = iy0; j <= iy1; j++) {
         for (let i = ix0; i <= ix1; i++) {

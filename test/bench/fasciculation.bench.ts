@@ -81,9 +81,10 @@ export async function fasciculationBench() {
   }
   const step = (k: string) => median(runs[k].map((t) => t.stepS));
   const bare = step('bare'), cues = step('cues'), on = step('on');
-  // The goal's ratio per repeat, from three runs made back to back, then its median: load on a
-  // shared machine drifts over minutes, and a ratio of differences of medians taken over the
-  // whole loop mixes runs made under different load (seen: 1.1 and 1.8 on one build).
+  // The goal's ratio per repeat, from three runs made back to back, then its median (the JSON
+  // figure): load on a shared machine drifts over minutes, and a ratio of medians mixes runs
+  // made under different load. Both are printed: on these machines single runs also jitter, and
+  // the per-repeat ratios then spread widely (seen 0.8–1.9 with a ratio of medians of 1.2).
   const ratios = runs.on.map((t, r) => (t.stepS - runs.cues[r].stepS) / (runs.cues[r].stepS - runs.bare[r].stepS));
   const last = runs.on[REPEATS - 1];
   const metricsS = timeMetrics(last.rule!);
