@@ -4,15 +4,18 @@
 // maps each occupied cell's 32-bit hash to the head of a singly linked list of blocks of
 // entries. A segment is entered in every cell its bounding box touches, so a query visits only
 // the cells its own box touches; candidates are measured on the shaft store's points. An entry
-// is the segment's key a·stride + s and a 27-bit mask of the sub-cubes (the cell cut 3 × 3 × 3)
-// that the segment's box meets inside the cell.
+// is the segment's key a·stride + s and the segment's bounding box inside the cell, each bound
+// rounded down to a sixteenth of the cell edge (boxCode below: 4 bits a bound, 24 in all).
 //
-// Why the sub-cube masks: a search in a crowded bundle reads its home cell whole (about 70
-// entries in test/bench/fasciculation.bench.ts) although, once a near segment is found, the
-// answer must lie within a small box round the query point. An entry whose mask misses every
-// sub-cube of that box is skipped without touching the shaft store, one AND instead of a
-// cache miss. Replaying that bench's searches: 2.5–2.8 µs per query against 4.3–4.9 µs with
-// keys alone; appends 220–290 ns against about 150 (the mask and the wider entry).
+// Why the boxes: a search in a crowded bundle reads its home cell whole (about 70 entries on
+// average over test/bench/fasciculation.bench.ts, 160 at its end) although, once a near segment
+// is found, the answer must lie within a small box round the query point, shrinking with each
+// nearer segment found. An entry whose box misses that box is skipped without touching the
+// shaft store: three integer operations instead of a cache miss. Replaying that bench's
+// searches of its last 8 steps against its final index (15 repeats, one process): 3.32 µs per
+// search against 3.90 with masks of the sub-cubes (cell cut 3 × 3 × 3) that the box meets,
+// 17 segments measured per search against 38; the masks had measured 2.5–2.8 µs against
+// 4.3–4.9 with keys alone (over the whole run). Appends cost the same as with masks.
 // Why blocks that double in size along a cell's list (4, 8, 16, … up to MAX_KEYS entries): a
 // cell's entries then sit in a few runs of memory instead of many small blocks spread over the
 // pool in growth order (all axons append one segment per step, so one cell's segments arrive
@@ -51,8 +54,7 @@ import { scanNearest, scanWithin } from './bruteForceIndex.ts';
 
 const DEFAULT_CELL_SIZE = 20; // µm, upper end of the fasciculation radius
 /** A block is [next block or −1, entry count, capacity, entry × capacity]; an entry is
- *  [key, sub-cube mask], the mask's bit i + 3j + 9k set where the segment's bounding box meets
- *  sub-cube (i, j, k) of the cell's 3 × 3 × 3. */
+ *  [key, box code] (boxCode). */
 const HEAD = 3;
 const ENTRY = 2;
 const FIRST_KEYS = 4;
@@ -61,8 +63,8 @@ const MAX_KEYS = 64;
 export class HashGridShaftIndex implements ShaftIndex {
   readonly cellSize: number;
   private readonly inv: number;
-  /** 3 / cellSize: sub-cubes per µm */
-  private readonly subInv: number;
+  /** BOX_UNITS / cellSize: box units per µm */
+  private readonly unitInv: number;
   private readonly store: ShaftStore;
   /** cell table, 2 ints per slot: [cell hash, head block]; head −1 marks an empty slot */
   private cells: Int32Array;
@@ -86,7 +88,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     if (!(cellSize > 0) || !Number.isFinite(cellSize)) throw new RangeError(`cellSize must be > 0, got ${cellSize}`);
     this.cellSize = cellSize;
     this.inv = 1 / cellSize;
-    this.subInv = 3 / cellSize;
+    this.unitInv = BOX_UNITS / cellSize;
     this.store = new ShaftStore(opts.axons, opts.maxPointsPerAxon);
     this.keyStride = this.store.stride;
     // Sized for the expected segment count: about 2.2 two-word entries each (a growth step of
@@ -174,10 +176,10 @@ export class HashGridShaftIndex implements ShaftIndex {
         const dyz = gap(y, j * cs, cs) ** 2 + dz * dz;
         for (let i = ix0; i <= ix1; i++) {
           if (gap(x, i * cs, cs) ** 2 + dyz > cull2) continue;
-          const near = this.boxMask(x - e, x + e, y - e, y + e, z - e, z + e, i, j, k);
+          const near = this.queryCode(x, y, z, e, i, j, k);
           for (let b = this.cellHead(cellHash(i, j, k)); b !== -1; b = pool[b]) {
             for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
-              if ((pool[q + 1] & near) === 0) continue;
+              if (!boxesMeet(pool[q + 1], near)) continue;
               const key = pool[q];
               if (stamp[key] === st) continue;
               stamp[key] = st;
@@ -196,9 +198,9 @@ export class HashGridShaftIndex implements ShaftIndex {
 
   /** Scans the blocks of cell (i, j, k) for an accepted segment nearer than best2, updating
    *  best2 and bestKey (the first of equals found, and one exactly at r counts). A segment
-   *  whose box meets none of the sub-cubes that the box around (x, y, z) of half-side
-   *  √best2 meets is skipped unread: its part in this cell is farther than the best so far
-   *  (any nearer part lies in another cell, where it is entered and measured). */
+   *  whose box in this cell misses the box around (x, y, z) of half-side √best2 is skipped
+   *  unread: its part in this cell is farther than the best so far (any nearer part lies in
+   *  another cell, where it is entered and measured). */
   private scanCellNearest(
     b: number, i: number, j: number, k: number,
     x: number, y: number, z: number, accept: (axon: number) => boolean,
@@ -207,10 +209,10 @@ export class HashGridShaftIndex implements ShaftIndex {
     const shift = store.strideShift, mask = store.stride - 1;
     let best2 = this.best2, bestKey = this.bestKey;
     let e = Math.sqrt(best2) + BOX_SLACK;
-    let near = this.boxMask(x - e, x + e, y - e, y + e, z - e, z + e, i, j, k);
+    let near = this.queryCode(x, y, z, e, i, j, k);
     for (; b !== -1; b = pool[b]) {
       for (let q = b + HEAD, end = q + ENTRY * pool[b + 1]; q < end; q += ENTRY) {
-        if ((pool[q + 1] & near) === 0) continue;
+        if (!boxesMeet(pool[q + 1], near)) continue;
         const key = pool[q];
         const a = key >>> shift, o = store.offset(a, key & mask);
         const d2 = pointSegmentDistanceSq(x, y, z, p[o], p[o + 1], p[o + 2], p[o + ps], p[o + ps + 1], p[o + ps + 2]);
@@ -219,7 +221,7 @@ export class HashGridShaftIndex implements ShaftIndex {
           best2 = d2;
           bestKey = key;
           e = Math.sqrt(d2) + BOX_SLACK;
-          near = this.boxMask(x - e, x + e, y - e, y + e, z - e, z + e, i, j, k);
+          near = this.queryCode(x, y, z, e, i, j, k);
         }
       }
     }
@@ -227,14 +229,27 @@ export class HashGridShaftIndex implements ShaftIndex {
     this.bestKey = bestKey;
   }
 
-  /** Sub-cube mask of the box [x0, x1] × [y0, y1] × [z0, z1] within cell (i, j, k); a box
-   *  reaching past the cell counts as touching its border sub-cubes. */
-  private boxMask(x0: number, x1: number, y0: number, y1: number, z0: number, z1: number, i: number, j: number, k: number): number {
-    const inv = this.subInv, cs = this.cellSize;
+  /** Box code of the segment box [x0, x1] × [y0, y1] × [z0, z1] within cell (i, j, k), the
+   *  form entries keep: the upper bounds' units, then BOX_UNITS − 1 minus the lower bounds'. */
+  private boxCode(x0: number, x1: number, y0: number, y1: number, z0: number, z1: number, i: number, j: number, k: number): number {
+    const u = this.unitInv, cs = this.cellSize;
     const ox = i * cs, oy = j * cs, oz = k * cs;
-    return AXIS_MASKS[subIndex((x0 - ox) * inv) * 3 + subIndex((x1 - ox) * inv)]
-      & AXIS_MASKS[9 + subIndex((y0 - oy) * inv) * 3 + subIndex((y1 - oy) * inv)]
-      & AXIS_MASKS[18 + subIndex((z0 - oz) * inv) * 3 + subIndex((z1 - oz) * inv)];
+    return boxUnit((x1 - ox) * u) | (boxUnit((y1 - oy) * u) << 5) | (boxUnit((z1 - oz) * u) << 10)
+      | ((BOX_UNITS - 1 - boxUnit((x0 - ox) * u)) << 15)
+      | ((BOX_UNITS - 1 - boxUnit((y0 - oy) * u)) << 20)
+      | ((BOX_UNITS - 1 - boxUnit((z0 - oz) * u)) << 25);
+  }
+
+  /** Query code of the box of half-side e around (x, y, z) within cell (i, j, k), the form
+   *  boxesMeet compares entries with: the lower bounds' units, then BOX_UNITS − 1 minus the
+   *  upper bounds'. */
+  private queryCode(x: number, y: number, z: number, e: number, i: number, j: number, k: number): number {
+    const u = this.unitInv, cs = this.cellSize;
+    const ox = i * cs, oy = j * cs, oz = k * cs;
+    return boxUnit((x - e - ox) * u) | (boxUnit((y - e - oy) * u) << 5) | (boxUnit((z - e - oz) * u) << 10)
+      | ((BOX_UNITS - 1 - boxUnit((x + e - ox) * u)) << 15)
+      | ((BOX_UNITS - 1 - boxUnit((y + e - oy) * u)) << 20)
+      | ((BOX_UNITS - 1 - boxUnit((z + e - oz) * u)) << 25);
   }
 
   private insertSegment(a: number, s: number): void {
@@ -242,7 +257,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     const o = this.store.offset(a, s), o1 = o + this.store.pointStep;
     const key = a * this.store.stride + s;
     const inv = this.inv;
-    // the segment's bounding box, grown by the slack so rounding cannot drop a sub-cube
+    // the segment's bounding box, grown by the slack so rounding cannot drop a box unit
     const e = BOX_SLACK;
     const x0 = Math.min(p[o], p[o1]) - e, x1 = Math.max(p[o], p[o1]) + e;
     const y0 = Math.min(p[o + 1], p[o1 + 1]) - e, y1 = Math.max(p[o + 1], p[o1 + 1]) + e;
@@ -253,7 +268,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     for (let k = iz0; k <= iz1; k++) {
       for (let j = iy0; j <= iy1; j++) {
         for (let i = ix0; i <= ix1; i++) {
-          this.pushEntry(cellHash(i, j, k), key, this.boxMask(x0, x1, y0, y1, z0, z1, i, j, k));
+          this.pushEntry(cellHash(i, j, k), key, this.boxCode(x0, x1, y0, y1, z0, z1, i, j, k));
         }
       }
     }
@@ -270,7 +285,7 @@ export class HashGridShaftIndex implements ShaftIndex {
 
   /** Adds segment `key` to the cell with hash h: into the cell's head block, or a new one of
    *  twice that size if it is full. */
-  private pushEntry(h: number, key: number, subMask: number): void {
+  private pushEntry(h: number, key: number, box: number): void {
     const cells = this.cells, mask = this.cellMask;
     let slot = h & mask;
     while (cells[2 * slot + 1] !== -1 && cells[2 * slot] !== h) slot = (slot + 1) & mask;
@@ -284,7 +299,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     }
     const pool = this.pool, q = b + HEAD + ENTRY * pool[b + 1]++;
     pool[q] = key;
-    pool[q + 1] = subMask;
+    pool[q + 1] = box;
     this.entryCount++;
     if (10 * this.cellsUsed > 7 * (mask + 1)) this.growCells();
   }
@@ -348,29 +363,27 @@ export class HashGridShaftIndex implements ShaftIndex {
   }
 }
 
-/** AXIS_MASKS[9·axis + 3·lo + hi]: the sub-cubes (bit i + 3j + 9k) whose index along that axis
- *  lies in lo..hi. */
-const AXIS_MASKS = (() => {
-  const m = new Int32Array(27);
-  for (let axis = 0; axis < 3; axis++) {
-    for (let lo = 0; lo < 3; lo++) {
-      for (let hi = lo; hi < 3; hi++) {
-        let bits = 0;
-        for (let c = 0; c < 27; c++) {
-          const at = axis === 0 ? c % 3 : axis === 1 ? ((c / 3) | 0) % 3 : (c / 9) | 0;
-          if (at >= lo && at <= hi) bits |= 1 << c;
-        }
-        m[9 * axis + 3 * lo + hi] = bits;
-      }
-    }
-  }
-  return m;
-})();
+/** Box bounds are kept in units of cellSize / BOX_UNITS along each axis. */
+const BOX_UNITS = 16;
+/** Bit 4 of each of the six 5-bit fields of a box or query code. */
+const GUARDS = 16 | (16 << 5) | (16 << 10) | (16 << 15) | (16 << 20) | (16 << 25);
 
-/** Sub-cube index along one axis of a coordinate in sub-cube units from the cell's corner,
- *  clamped to the cell. */
-function subIndex(t: number): number {
-  return t < 1 ? 0 : t < 2 ? 1 : 2;
+/** Do an entry's box and a query box overlap on all three axes? Both are six 4-bit fields, one
+ *  to each 5 bits: the entry's (hi_x, hi_y, hi_z, 15 − lo_x, 15 − lo_y, 15 − lo_z), the
+ *  query's (lo_x, lo_y, lo_z, 15 − hi_x, 15 − hi_y, 15 − hi_z). Overlap is hi ≥ lo' and
+ *  lo ≤ hi' on every axis, i.e. entry field ≥ query field in all six. Setting each entry
+ *  field's bit 4 and subtracting the query compares all six at once: a field's bit 4 survives
+ *  iff entry ≥ query there, and no field borrows from the next (SIMD within a register; a
+ *  common bit trick, no source). Bounds are rounded down on both sides, which keeps order, so
+ *  boxes that meet never test apart. */
+function boxesMeet(entry: number, query: number): boolean {
+  return (((entry | GUARDS) - query) & GUARDS) === GUARDS;
+}
+
+/** Box unit of a coordinate in units from the cell's corner, clamped to the cell: a box reaching
+ *  past the cell counts as touching its border units. */
+function boxUnit(t: number): number {
+  return t < 0 ? 0 : t >= BOX_UNITS ? BOX_UNITS - 1 : Math.floor(t);
 }
 
 /** Distance from coordinate v to the interval [lo, lo + size] (0 inside). */
