@@ -56,15 +56,30 @@ export async function open(ctx: BrowserContext, url: string): Promise<{ page: Pa
   return { page, state: await page.getAttribute('#axonloom', 'data-run-state'), errors };
 }
 
-/** Waits until view `view` has drawn its full picture after the last change. */
+/** Waits until view `view` has drawn its full picture after the last change, and has kept it
+ *  for STILL_MS with no newer report: on a loaded machine a change can start redrawing after
+ *  an earlier full picture was reported, and that report alone would pass. */
 export async function settled(page: Page, view = 0): Promise<void> {
   const before = await page.evaluate((v) => window.__axonloom?.reports[v]?.length ?? 0, view);
   await page.waitForTimeout(350); // longer than the viewer's settle delay
-  await page.waitForFunction(([v, n]) => {
+  await page.waitForFunction(([v, n, still]) => {
     const r = window.__axonloom?.reports[v];
-    return !!r && r.length >= n && r[r.length - 1].mode === 'all';
-  }, [view, before] as const, { timeout: 60_000, polling: 100 });
+    const w = window as unknown as { __settle?: Record<number, { length: number; since: number } | undefined> };
+    const seen = (w.__settle ??= {});
+    if (!r || r.length < n || r[r.length - 1].mode !== 'all') {
+      seen[v] = undefined;
+      return false;
+    }
+    const last = seen[v];
+    if (!last || last.length !== r.length) {
+      seen[v] = { length: r.length, since: performance.now() };
+      return false;
+    }
+    return performance.now() - last.since >= still;
+  }, [view, before, STILL_MS] as const, { timeout: 60_000, polling: 100 });
 }
+
+const STILL_MS = 400;
 
 export interface PixelStats {
   width: number;
