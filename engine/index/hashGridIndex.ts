@@ -229,27 +229,21 @@ export class HashGridShaftIndex implements ShaftIndex {
     this.bestKey = bestKey;
   }
 
-  /** Box code of the segment box [x0, x1] × [y0, y1] × [z0, z1] within cell (i, j, k), the
-   *  form entries keep: the upper bounds' units, then BOX_UNITS − 1 minus the lower bounds'. */
-  private boxCode(x0: number, x1: number, y0: number, y1: number, z0: number, z1: number, i: number, j: number, k: number): number {
+  /** Six bounds within cell (i, j, k) packed for boxesMeet: the box units of a, b, c in the
+   *  low three 5-bit fields, BOX_UNITS − 1 minus those of d, e, f in the high three. An entry
+   *  packs its box's upper bounds then its lower ones; a query its lower then its upper. */
+  private boxCode(a: number, b: number, c: number, d: number, e: number, f: number, i: number, j: number, k: number): number {
     const u = this.unitInv, cs = this.cellSize;
     const ox = i * cs, oy = j * cs, oz = k * cs;
-    return boxUnit((x1 - ox) * u) | (boxUnit((y1 - oy) * u) << 5) | (boxUnit((z1 - oz) * u) << 10)
-      | ((BOX_UNITS - 1 - boxUnit((x0 - ox) * u)) << 15)
-      | ((BOX_UNITS - 1 - boxUnit((y0 - oy) * u)) << 20)
-      | ((BOX_UNITS - 1 - boxUnit((z0 - oz) * u)) << 25);
+    return boxUnit((a - ox) * u) | (boxUnit((b - oy) * u) << 5) | (boxUnit((c - oz) * u) << 10)
+      | ((BOX_UNITS - 1 - boxUnit((d - ox) * u)) << 15)
+      | ((BOX_UNITS - 1 - boxUnit((e - oy) * u)) << 20)
+      | ((BOX_UNITS - 1 - boxUnit((f - oz) * u)) << 25);
   }
 
-  /** Query code of the box of half-side e around (x, y, z) within cell (i, j, k), the form
-   *  boxesMeet compares entries with: the lower bounds' units, then BOX_UNITS − 1 minus the
-   *  upper bounds'. */
+  /** Query code of the box of half-side e around (x, y, z) within cell (i, j, k). */
   private queryCode(x: number, y: number, z: number, e: number, i: number, j: number, k: number): number {
-    const u = this.unitInv, cs = this.cellSize;
-    const ox = i * cs, oy = j * cs, oz = k * cs;
-    return boxUnit((x - e - ox) * u) | (boxUnit((y - e - oy) * u) << 5) | (boxUnit((z - e - oz) * u) << 10)
-      | ((BOX_UNITS - 1 - boxUnit((x + e - ox) * u)) << 15)
-      | ((BOX_UNITS - 1 - boxUnit((y + e - oy) * u)) << 20)
-      | ((BOX_UNITS - 1 - boxUnit((z + e - oz) * u)) << 25);
+    return this.boxCode(x - e, y - e, z - e, x + e, y + e, z + e, i, j, k);
   }
 
   private insertSegment(a: number, s: number): void {
@@ -268,7 +262,7 @@ export class HashGridShaftIndex implements ShaftIndex {
     for (let k = iz0; k <= iz1; k++) {
       for (let j = iy0; j <= iy1; j++) {
         for (let i = ix0; i <= ix1; i++) {
-          this.pushEntry(cellHash(i, j, k), key, this.boxCode(x0, x1, y0, y1, z0, z1, i, j, k));
+          this.pushEntry(cellHash(i, j, k), key, this.boxCode(x1, y1, z1, x0, y0, z0, i, j, k));
         }
       }
     }
