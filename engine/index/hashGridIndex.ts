@@ -5,7 +5,8 @@
 // entries. A segment is entered in every cell its bounding box touches, so a query visits only
 // the cells its own box touches; candidates are measured on the shaft store's points. An entry
 // is the segment's key a·stride + s and the segment's bounding box inside the cell, each bound
-// rounded down to a sixteenth of the cell edge (boxCode below: 4 bits a bound, 24 in all).
+// rounded down to a sixteenth of the cell edge (boxCode below: six 4-bit bounds, each in a
+// 5-bit field).
 //
 // Why the boxes: a search in a crowded bundle reads its home cell whole (about 70 entries on
 // average over test/bench/fasciculation.bench.ts, 160 at its end) although, once a near segment
@@ -15,7 +16,7 @@
 // searches of its last 8 steps against its final index (15 repeats, one process): 3.32 µs per
 // search against 3.90 with masks of the sub-cubes (cell cut 3 × 3 × 3) that the box meets,
 // 17 segments measured per search against 38; the masks had measured 2.5–2.8 µs against
-// 4.3–4.9 with keys alone (over the whole run). Appends cost the same as with masks.
+// 4.3–4.9 with keys alone (over the whole run).
 // Why blocks that double in size along a cell's list (4, 8, 16, … up to MAX_KEYS entries): a
 // cell's entries then sit in a few runs of memory instead of many small blocks spread over the
 // pool in growth order (all axons append one segment per step, so one cell's segments arrive
