@@ -13,7 +13,7 @@ import { Scene } from '../../engine/scene/schema.ts';
 import { parseScene } from '../../engine/scene/load.ts';
 import { resolveScene } from '../../engine/scene/edits.ts';
 import { buildWorld, simulate, type World } from '../../engine/sim/simulate.ts';
-import type { FasciculationRule } from '../../engine/agents/fasciculation.ts';
+import { type FasciculationRule, HOT_INDEX, makeFasciculationRule } from '../../engine/agents/fasciculation.ts';
 import type { FasciculationMetrics } from '../../engine/metrics/fasciculation.ts';
 import { fasciculationMetrics } from '../../engine/metrics/fasciculation.ts';
 import { createShaftIndex } from '../../engine/index/shaftIndex.ts';
@@ -139,6 +139,29 @@ describe('bundles.json: followers bundle onto pioneers', async () => {
     expect(Math.abs(r.m.fasciculatedFraction - ref.fasciculatedFraction)).toBeLessThan(2e-3);
     expect(Math.abs(r.m.shaftLengthUm - ref.shaftLengthUm) / ref.shaftLengthUm).toBeLessThan(1e-5);
     expect(r.m.bundleCount).toBe(ref.bundleCount);
+  });
+
+  it('paths are the same, bit for bit, with each step’s searches made ahead or cone by cone', async () => {
+    // The rule finds every cone's nearest shaft at the start of a step, the searches sorted
+    // by cell and bounded by a neighbour's answer; it must answer as it does asking each
+    // cone's question as the cone steers. Same index both ways: the indexes agree on
+    // distances (test/index/shaftIndex.test.ts, against brute force and three.js Line3) but
+    // may pick different segments where two tie, and paths then part.
+    const paths = async (findAhead: boolean) => {
+      const scene = parseScene(TEXT, 'bundles.json');
+      const world = buildWorld(scene, { axons: 60 });
+      const rule = makeFasciculationRule(world, HOT_INDEX, { findAhead })!;
+      world.rules = [...world.rules.filter((r) => r.name !== 'fasciculation'), rule];
+      const frames: Float32Array[] = [];
+      await simulate(world, { onFrame: (_f, _s, pos) => frames.push(pos.slice()) });
+      return { frames, end: world.cones.position.slice(), attached: (rule.metrics().fasciculation as { attachedSteps: number }).attachedSteps };
+    };
+    const ahead = await paths(true), plain = await paths(false);
+    expect(ahead.attached).toBeGreaterThan(0);
+    expect(ahead.attached).toBe(plain.attached);
+    expect(ahead.frames.length).toBe(plain.frames.length);
+    ahead.frames.forEach((f, k) => expect(f).toEqual(plain.frames[k]));
+    expect(ahead.end).toEqual(plain.end);
   });
 });
 
