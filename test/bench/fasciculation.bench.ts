@@ -27,11 +27,13 @@ function sceneFor(config: Config, axons?: number) {
   return Scene.parse(s);
 }
 
-interface Timing { stepS: number; coneSteps: number; attached: number; segments: number; world: World; rule?: FasciculationRule }
+interface Timing { stepS: number; coneSteps: number; attached: number; segments: number; rule?: FasciculationRule }
 
 /** One run's step loop in CPU seconds (process.cpuUsage: time other processes take on a shared
- *  machine is not counted). The end-of-run metrics pass is left out here and timed on its own. */
-async function timeRun(config: Config, kind: ShaftIndexKind = HOT_INDEX, axons?: number): Promise<Timing> {
+ *  machine is not counted). The end-of-run metrics pass is left out here and timed on its own.
+ *  The run's rule is kept only when `keep` asks for it: every world left alive would weigh on
+ *  the heap, and so on the collector, in all the runs after it. */
+async function timeRun(config: Config, kind: ShaftIndexKind = HOT_INDEX, axons?: number, keep = false): Promise<Timing> {
   const world = buildWorld(sceneFor(config, axons));
   let rule: FasciculationRule | undefined;
   let finish: (() => void) | undefined;
@@ -47,7 +49,7 @@ async function timeRun(config: Config, kind: ShaftIndexKind = HOT_INDEX, axons?:
   if (rule && finish) rule.finish = finish;
   const m = rule ? (rule.metrics().fasciculation as { attachedSteps: number; releasedSteps: number; segments: number }) : undefined;
   return {
-    stepS: (c.user + c.system) / 1e6, coneSteps: coneSteps(world), world, rule,
+    stepS: (c.user + c.system) / 1e6, coneSteps: coneSteps(world), rule: keep ? rule : undefined,
     attached: m ? m.attachedSteps + m.releasedSteps : 0, segments: m?.segments ?? 0,
   };
 }
@@ -77,7 +79,7 @@ export async function fasciculationBench() {
   for (let r = 0; r < REPEATS; r++) {
     runs.bare.push(await timeRun('bare'));
     runs.cues.push(await timeRun('cues'));
-    runs.on.push(await timeRun('cues+fasciculation'));
+    runs.on.push(await timeRun('cues+fasciculation', HOT_INDEX, undefined, r === REPEATS - 1));
   }
   const step = (k: string) => median(runs[k].map((t) => t.stepS));
   const bare = step('bare'), cues = step('cues'), on = step('on');
@@ -95,7 +97,7 @@ export async function fasciculationBench() {
   for (let r = 0; r < COMPARE_REPEATS; r++) {
     compare.cues.push((await timeRun('cues', HOT_INDEX, COMPARE_AXONS)).stepS);
     for (const kind of ['hashgrid', 'rtree'] as const) {
-      const t = await timeRun('cues+fasciculation', kind, COMPARE_AXONS);
+      const t = await timeRun('cues+fasciculation', kind, COMPARE_AXONS, r === 0);
       compare[kind].push(t.stepS);
       if (r === 0) compareMetrics[kind] = timeMetrics(t.rule!);
     }
