@@ -272,8 +272,10 @@ export class HashGridShaftIndex implements ShaftIndex {
     const ix0 = cellOfUnit(ux0), ix1 = cellOfUnit(ux1);
     const iy0 = cellOfUnit(uy0), iy1 = cellOfUnit(uy1);
     const iz0 = cellOfUnit(uz0), iz1 = cellOfUnit(uz1);
-    // boxCode's fields, axis by axis (y and z once per row of cells). Only one side needs a
-    // clamp: the segment's upper bound is in or past each of its cells, its lower in or before.
+    // boxCode's fields, written out axis by axis (y and z once per row of cells); only one side
+    // needs a clamp: the segment's upper bound is in or past each of its cells, its lower in or
+    // before. Why not call boxCode: in the same replay that call measured 1.05–1.07× the time of
+    // rounding per cell, this inline form 0.79–0.87×.
     const top = BOX_UNITS - 1;
     for (let k = iz0; k <= iz1; k++) {
       const oz = k * BOX_UNITS, zCode = (Math.min(uz1 - oz, top) << 10) | ((top - Math.max(uz0 - oz, 0)) << 25);
